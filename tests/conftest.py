@@ -56,8 +56,8 @@ def check(request: pytest.FixtureRequest):
         rel = dev / np.maximum(np.abs(e), 1e-300)
         worst = int(np.argmax(dev - (atol + rtol * np.abs(e)))) if c.size > 1 else 0
         ok = bool(np.all(dev <= atol + rtol * np.abs(e)))
-        cw = float(np.ravel(c)[worst] if c.size > 1 else c)
-        ew = float(np.ravel(e)[worst] if e.size > 1 else e)
+        cw = float(np.ravel(c)[worst])
+        ew = float(np.ravel(e)[worst if e.size > 1 else 0])
         tol = " + ".join(
             s
             for s in ((f"{rtol:.3g} rel" if rtol else ""), (f"{atol:.3g} abs" if atol else ""))
