@@ -215,21 +215,69 @@ def _regime(re: FloatArray, invalid: BoolArray) -> IntArray:
     return np.where(invalid, INVALID, reg).astype(np.int8)
 
 
-def _poiseuille_channel(re: FloatArray, alpha: ArrayLike, l_over_dh: FloatArray) -> FloatArray:
-    """f_app * Re (FANNING) across all regimes; finite at Re = 0 (fully developed laminar)."""
+class FrictionTerms(NamedTuple):
+    """Per-channel constants of the friction model, computed once per geometry."""
+
+    fre_fd: FloatArray  # fully developed laminar f Re (FANNING)
+    short_coeff_sq: FloatArray  # 3.44^2 / (L/Dh): laminar developing term per unit Re
+    g_lo: FloatArray  # f Re^2 at the laminar anchor Re = 2300
+    g_hi: FloatArray  # f Re^2 at the turbulent anchor Re = 1e4 (never below g_lo)
+
+
+def friction_terms(alpha: ArrayLike, L_over_Dh: ArrayLike) -> FrictionTerms:
+    """Return the Re-independent constants of ``fanning_channel`` for a set of channels.
+
+    Formula: fRe_fd = ``fanning_fRe_fully_developed_rect(alpha)``; c = 3.44^2/(L/Dh);
+    g_lo = 2300 sqrt(c 2300 + fRe_fd^2); g_hi = max(f_Petukhov(1e4) 1e4^2, g_lo).
+
+    Parameters: alpha aspect ratio (-), L_over_Dh channel length over hydraulic diameter (-).
+
+    Returns: :class:`FrictionTerms` (all dimensionless). Use with :func:`poiseuille_number`
+    when the same channels are evaluated at many Reynolds numbers (the fan root find).
+
+    Validity: as :func:`fanning_channel`.
+
+    Source: the constants of :func:`fanning_channel` (Muzychka & Yovanovich 2004, 2009;
+    Petukhov 1970; Gnielinski 2013) -- a refactoring, no new physics.
+
+    Example: long parallel-plate channels: ``friction_terms(0.0, 1e6).fre_fd`` is 24.
+    """
     fre_fd = fanning_fRe_fully_developed_rect(alpha)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        c = _SHORT_DUCT_COEFF**2 / np.asarray(L_over_Dh, dtype=float)
+        g_lo = RE_LAMINAR_MAX * np.sqrt(c * RE_LAMINAR_MAX + fre_fd * fre_fd)
+    g_hi = np.maximum(fanning_turbulent_smooth(RE_TURBULENT_MIN) * RE_TURBULENT_MIN**2, g_lo)
+    return FrictionTerms(fre_fd, c, g_lo, g_hi)
+
+
+def poiseuille_number(re: FloatArray, terms: FrictionTerms) -> FloatArray:
+    """Return f_app Re (FANNING) across all regimes from precomputed :func:`friction_terms`.
+
+    Formula: as :func:`fanning_channel` (f Re = f_app * Re); finite at Re = 0 (the fully
+    developed laminar value).
+
+    Parameters: re Reynolds number on Dh (-, >= 0); terms from :func:`friction_terms`.
+
+    Returns: f_app Re (-), >= fRe_fd.
+
+    Validity: as :func:`fanning_channel`; no flags here (use fanning_channel for them).
+
+    Source: Muzychka & Yovanovich (2004, 2009); Petukhov (1970); Gnielinski (2013).
+
+    Example: ``poiseuille_number(np.array([1000.0]), friction_terms(0.0, 1e6))`` is [24.0].
+    """
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
         # laminar: sqrt((3.44/sqrt(x+))^2 + fRe^2) with 1/x+ = Re / (L/Dh), safe at Re = 0
-        po_lam = np.sqrt(_SHORT_DUCT_COEFF**2 * re / l_over_dh + fre_fd * fre_fd)
-        po_lam_lo = np.sqrt(_SHORT_DUCT_COEFF**2 * RE_LAMINAR_MAX / l_over_dh + fre_fd * fre_fd)
+        po_lam = np.sqrt(terms.short_coeff_sq * re + terms.fre_fd * terms.fre_fd)
         po_turb = fanning_turbulent_smooth(re) * re
-        g_lo = po_lam_lo * RE_LAMINAR_MAX  # f Re^2 at the laminar anchor
-        g_hi = np.maximum(
-            fanning_turbulent_smooth(RE_TURBULENT_MIN) * RE_TURBULENT_MIN**2, g_lo
-        )  # f Re^2 at the turbulent anchor (never below the laminar anchor)
         gam = _transition_weight(re)
-        po_tr = ((1.0 - gam) * g_lo + gam * g_hi) / re
+        po_tr = ((1.0 - gam) * terms.g_lo + gam * terms.g_hi) / re
     return np.where(re <= RE_LAMINAR_MAX, po_lam, np.where(re >= RE_TURBULENT_MIN, po_turb, po_tr))
+
+
+def _poiseuille_channel(re: FloatArray, alpha: ArrayLike, l_over_dh: FloatArray) -> FloatArray:
+    """f_app * Re (FANNING) across all regimes; finite at Re = 0 (fully developed laminar)."""
+    return poiseuille_number(re, friction_terms(alpha, l_over_dh))
 
 
 def fanning_channel(reynolds: ArrayLike, alpha: ArrayLike, L_over_Dh: ArrayLike) -> ChannelFriction:

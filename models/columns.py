@@ -56,7 +56,6 @@ COLUMNS: dict[str, str] = {
     "base_temperature_K": "highest source-footprint temperature on the base (K)",
     "junction_temperature_K": "highest junction temperature (K)",
     "junction_margin_K": "smallest (limit - junction temperature) over the sources (K)",
-    "fin_tip_temperature_K": "fin tip temperature above the mean base (K)",
     # validity
     "operating_point_found": "the fan and system curves meet (bool)",
     "in_fan_data": "operating point inside the fan curve's data (bool)",

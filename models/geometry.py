@@ -47,7 +47,7 @@ class PlateFinGeometry(NamedTuple):
 GEOMETRY_REASONS = (
     "",
     "fewer than 2 fins",
-    "a size is zero or negative",
+    "a size is below 1 micrometre (zero or negative)",
     "fin tip thicker than its root",
     "fins touch: root gap not wider than two root fillets",
     "tip round larger than half the tip thickness",
@@ -129,7 +129,8 @@ def plate_fin_geometry(
     Returns a :class:`PlateFinGeometry` of arrays. ``valid`` is False, with a ``reason_code``
     (index into ``GEOMETRY_REASONS``), where the profile cannot be made: N < 2, a size <= 0,
     a tip thicker than the root, a root gap not wider than two fillets (gap <= 0 included),
-    or a tip round larger than half the tip. Invalid rows still get finite numbers (gaps
+    or a tip round larger than half the tip; sizes below 1 micrometre count
+    as zero. Invalid rows still get finite numbers (gaps
     floored at 1 micrometre) so that the caller can compute and then mark them; never an
     exception.
 
@@ -157,25 +158,26 @@ def plate_fin_geometry(
 
     channels = np.maximum(Nf - 1.0, 1.0)
     pitch = (W - t_root) / channels
-    floor = 1e-6
+    floor = 1e-6  # 1 micrometre: no extrusion size is smaller
+    Hs, Ls, Ws = (np.maximum(v, floor) for v in (H, L, W))  # floored copies for derived sizes
     gap_root = pitch - t_root
     gap_tip = pitch - t_tip
     gap_mean = pitch - 0.5 * (t_root + t_tip)
     s = np.maximum(gap_mean, floor)
-    slant = np.sqrt(H * H + np.square(0.5 * (t_root - t_tip)))
-    fin_area = 2.0 * Nf * L * slant
+    slant = np.sqrt(Hs * Hs + np.square(0.5 * (t_root - t_tip)))
+    fin_area = 2.0 * np.maximum(Nf, 1.0) * Ls * slant
     if tip_area_counts:
-        fin_area = fin_area + Nf * L * t_tip
-    base_area = channels * np.maximum(gap_root, 0.0) * L
-    flow_area = channels * s * H
-    frontal = W * H
-    dh = 2.0 * s * H / (s + H)
-    alpha = np.minimum(s, H) / np.maximum(s, H)
+        fin_area = fin_area + Nf * Ls * np.maximum(t_tip, 0.0)
+    base_area = channels * np.maximum(gap_root, 0.0) * Ls
+    flow_area = channels * s * Hs
+    frontal = Ws * Hs
+    dh = 2.0 * s * Hs / (s + Hs)
+    alpha = np.minimum(s, Hs) / np.maximum(s, Hs)
     area = cross_section_area(N, t_root, t_tip, H, tb, W, r_f, r_t)
 
     checks = (
         Nf < 2,
-        (t_root <= 0) | (t_tip < 0) | (H <= 0) | (tb <= 0) | (W <= 0) | (L <= 0),
+        (t_root < floor) | (t_tip < 0) | (H < floor) | (tb < floor) | (W < floor) | (L < floor),
         t_tip > t_root,
         gap_root <= 2.0 * r_f,
         2.0 * r_t > t_tip + 1e-15,
@@ -200,7 +202,7 @@ def plate_fin_geometry(
         free_flow_ratio=flow_area / frontal,
         hydraulic_diameter_m=dh,
         channel_aspect_ratio=alpha,
-        fin_height_to_gap_ratio=H / np.maximum(gap_root, floor),
+        fin_height_to_gap_ratio=Hs / np.maximum(gap_root, floor),
         cross_section_area_m2=area,
         volume_m3=area * L,
         overall_height_m=H + tb,
