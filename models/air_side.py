@@ -14,19 +14,32 @@ from typing import NamedTuple
 import numpy as np
 
 from models.air import AirProperties
+from models.bypass import (
+    bypass_pressure_coefficients,
+    split_fixed_total_flow,
+    total_flow_with_bypass,
+)
 from models.channel import FrictionTerms, friction_terms, nusselt_channel, poiseuille_number
 from models.contract import AirSupply
-from models.fan import fan_model, fan_table, inside_fan_data, operating_point
+from models.fan import (
+    fan_model,
+    fan_pressure_indexed,
+    fan_table,
+    inside_fan_data,
+    operating_point,
+)
 from models.fins import fin_biot_number, fin_efficiency_tapered, overall_surface_efficiency
 from models.geometry import PlateFinGeometry
 from models.minor_losses import entrance_loss_coefficient, exit_loss_coefficient
 from models.natural import fan_stopped_base_rise
+from models.roots import bracketed_root
 
 
 class AirSide(NamedTuple):
     """Air-side results per design (SI). ``r_sink`` is base (isothermal) to inlet air."""
 
-    flow: np.ndarray  # m^3/s through the fins
+    flow: np.ndarray  # m^3/s delivered (fins + bypass)
+    channel_flow: np.ndarray  # m^3/s through the fin channels
     velocity: np.ndarray  # m/s in the channels
     reynolds: np.ndarray
     dp_sink: np.ndarray  # Pa
@@ -103,6 +116,37 @@ def channel_hydraulics(
     )
 
 
+def _fan_with_bypass(table, idx, ch, coeff, k_sys):
+    """Operating point with a bypass: root on the channel flow Q_c (one root find).
+
+    g(Q_c) = p_fan(Q) - dp_c(Q_c) - k Q^2 with Q = Q_c + Q_bypass(dp_c(Q_c)), falling in Q_c.
+    """
+    fan_idx = np.clip(idx, 0, len(table.models) - 1)  # a bad index gives NaN below
+    hi = table.free_delivery_m3_per_s[fan_idx]
+
+    def total(qc: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        dp = ch.pressure_drop(qc)
+        return total_flow_with_bypass(qc, dp, coeff.a, coeff.b), dp
+
+    def resid(qc: np.ndarray) -> np.ndarray:
+        q, dp = total(qc)
+        return fan_pressure_indexed(table, idx, q) - dp - k_sys * q * q
+
+    res = bracketed_root(
+        resid,
+        np.zeros_like(hi),
+        hi,
+        1e-12 * hi,
+        1e-9,
+        60,
+        f_lo=table.shutoff_pressure_Pa[fan_idx],
+        method="anderson-bjorck",
+    )
+    qc = np.where(res.converged, res.root, 1e-9)
+    q, _ = total(qc)
+    return q, qc, res.converged
+
+
 def forced_air_side(
     g: PlateFinGeometry,
     d: dict[str, np.ndarray],
@@ -110,6 +154,8 @@ def forced_air_side(
     supply: AirSupply,
     system_impedance: float,
     tip_convects: bool,
+    clearance_top: float = 0.0,
+    clearance_side: float = 0.0,
 ) -> AirSide:
     """Return the forced-convection air side of every design (see :class:`AirSide`).
 
@@ -120,9 +166,14 @@ def forced_air_side(
     R_sink = 1/(m_dot c_p (1 - exp(-NTU))) -- the isothermal-base heat exchanger, which counts
     the air's temperature rise once.
 
+    With a clearance around the fins (unducted sink in a larger duct), the flow splits between
+    the fin channels and the clearance at equal pressure drop (``models.bypass``, after
+    Simons & Schmidt); the fan delivers the total, the fins see the channel share, and the
+    operating point is one root find on the channel flow.
+
     Parameters: g geometry; d the design arrays (``Design.arrays()``); air inlet air
     properties; supply the air supply; system_impedance k (Pa s^2/m^6); tip_convects whether
-    fin tips see the air (no shroud).
+    fin tips see the air (no shroud); clearance_top, clearance_side bypass gaps (m).
 
     Returns: :class:`AirSide` (SI arrays).
 
@@ -141,29 +192,52 @@ def forced_air_side(
     k_sys = float(system_impedance)
     found = np.ones(n, dtype=bool)
     in_fan = np.ones(n, dtype=bool)
+    bypass = clearance_top > 0.0 or clearance_side > 0.0
+    if bypass:
+        coeff = bypass_pressure_coefficients(
+            d["base_width_m"],
+            d["fin_height_m"],
+            d["flow_length_m"],
+            clearance_top,
+            clearance_side,
+            rho,
+            float(air.kinematic_viscosity),
+        )
     if supply.mode == "fan":
         if not supply.fans:
             raise ValueError("supply.fans: empty; expected at least one fan curve in fan mode")
         table = fan_table([fan_model(c, rho) for c in supply.fans])
-        op = operating_point(
-            table,
-            d["fan_index"],
-            lambda q: ch.pressure_drop(q) + k_sys * q * q,
-            system_dp_at_zero=0.0,
-        )
-        found = op.found & g.valid
-        q = np.where(found, op.flow_m3_per_s, 1e-9)
+        if bypass:
+            q, qc, found = _fan_with_bypass(table, d["fan_index"], ch, coeff, k_sys)
+        else:
+            op = operating_point(
+                table,
+                d["fan_index"],
+                lambda q: ch.pressure_drop(q) + k_sys * q * q,
+                system_dp_at_zero=0.0,
+            )
+            found = op.found
+            q = qc = np.where(found, op.flow_m3_per_s, 1e-9)
+        found = found & g.valid
         in_fan = inside_fan_data(table, d["fan_index"], q) & found
-    elif supply.mode == "flow":
-        q = np.full(n, float(supply.flow_m3_per_s))
-    elif supply.mode == "velocity":
-        q = float(supply.velocity_m_per_s) * g.frontal_area_m2
+    elif supply.mode in ("flow", "velocity"):
+        if supply.mode == "flow":
+            q = np.full(n, float(supply.flow_m3_per_s))
+        else:  # approach velocity over the whole duct section ahead of the sink
+            duct = (d["base_width_m"] + 2 * clearance_side) * (d["fin_height_m"] + clearance_top)
+            q = float(supply.velocity_m_per_s) * duct
+        if bypass:
+            split = split_fixed_total_flow(q, ch.pressure_drop, coeff.a, coeff.b)
+            found = split.converged
+            qc = np.where(found, split.channel_flow, 1e-9)
+        else:
+            qc = q
     else:
         raise ValueError(f"supply.mode: {supply.mode!r}; expected 'fan', 'flow' or 'velocity'")
-    dp_sink = ch.pressure_drop(q)
-    v = q / ch.flow_area
+    dp_sink = ch.pressure_drop(qc)
+    v = qc / ch.flow_area
     re = v * ch.dh / float(air.kinematic_viscosity)
-    m_cp = rho * q * cp
+    m_cp = rho * qc * cp
 
     nu_res = nusselt_channel(re, float(air.prandtl), ch.alpha, ch.l_over_dh)
     h = nu_res.nusselt * float(air.conductivity) / ch.dh
@@ -176,6 +250,7 @@ def forced_air_side(
     r_sink = 1.0 / (m_cp * -np.expm1(-ntu))
     return AirSide(
         flow=q,
+        channel_flow=qc,
         velocity=v,
         reynolds=re,
         dp_sink=dp_sink,
@@ -246,6 +321,7 @@ def stopped_air_side(
     r_sink = np.where(ok, res.base_rise_K / power_total, np.inf)
     return AirSide(
         flow=zero,
+        channel_flow=zero,
         velocity=zero,
         reynolds=zero,
         dp_sink=zero,

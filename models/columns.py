@@ -32,7 +32,9 @@ COLUMNS: dict[str, str] = {
     "overall_height_m": "base thickness + fin height (m)",
     "mass_kg": "mass of the extrusion (kg)",
     # air flow
-    "flow_m3_per_s": "volumetric air flow through the sink at the inlet (m3/s)",
+    "flow_m3_per_s": "volumetric air flow delivered to the sink, bypass included (m3/s)",
+    "channel_flow_m3_per_s": "volumetric air flow through the fin channels (m3/s)",
+    "bypass_fraction": "share of the flow that passes around the fins (-)",
     "approach_velocity_m_per_s": "air velocity upstream of the fins over the frontal area (m/s)",
     "channel_velocity_m_per_s": "mean air velocity in the fin channels (m/s)",
     "reynolds_number": "channel Reynolds number on the hydraulic diameter (-)",

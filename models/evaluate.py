@@ -164,6 +164,8 @@ def evaluate(design: Design, conditions: Conditions) -> pd.DataFrame:
             conditions.supply,
             conditions.system_impedance_Pa_s2_per_m6,
             tip_convects,
+            float(conditions.clearance_top_m),
+            float(conditions.clearance_side_m),
         )
 
     # --- base, sources, junctions ---------------------------------------------------------
@@ -224,6 +226,8 @@ def evaluate(design: Design, conditions: Conditions) -> pd.DataFrame:
         "overall_height_m": g.overall_height_m,
         "mass_kg": g.volume_m3 * d["density_kg_per_m3"],
         "flow_m3_per_s": ok(a.flow),
+        "channel_flow_m3_per_s": ok(a.channel_flow),
+        "bypass_fraction": ok(1.0 - a.channel_flow / np.where(a.flow > 0, a.flow, 1.0)),
         "approach_velocity_m_per_s": ok(a.flow / g.frontal_area_m2),
         "channel_velocity_m_per_s": ok(a.velocity),
         "reynolds_number": ok(a.reynolds),

@@ -192,8 +192,10 @@ def fan_model(curve: FanCurve, density_kg_per_m3: float) -> FanModel:
     """
     validate_fan_curve(curve.flow_m3_per_s, curve.pressure_Pa, curve.name)
     who = f"fan {curve.name!r}"
-    if isinstance(curve.count, bool) or not isinstance(curve.count, (int, np.integer)) or (
-        curve.count < 1
+    if (
+        isinstance(curve.count, bool)
+        or not isinstance(curve.count, (int, np.integer))
+        or (curve.count < 1)
     ):
         raise ValueError(f"{who}: count = {curve.count!r}; expected a whole number >= 1")
     if curve.arrangement not in ("parallel", "series"):
@@ -212,8 +214,10 @@ def fan_model(curve: FanCurve, density_kg_per_m3: float) -> FanModel:
     n = int(curve.count)
     ratio = float(density_kg_per_m3) / float(curve.rated_density_kg_per_m3)
     x = np.asarray(curve.flow_m3_per_s, dtype=float) * (n if curve.arrangement == "parallel" else 1)
-    y = np.asarray(curve.pressure_Pa, dtype=float) * ratio * (
-        n if curve.arrangement == "series" else 1
+    y = (
+        np.asarray(curve.pressure_Pa, dtype=float)
+        * ratio
+        * (n if curve.arrangement == "series" else 1)
     )
     d = _pchip_slopes(x, y)
     h = np.diff(x)
@@ -566,7 +570,15 @@ def operating_point(
             p, s = g_lo, g_lo - g_hi - table.shutoff_pressure_Pa[idx]  # P and S
             q_hint = hi * (2.0 * p / (p + np.sqrt(p * p + 4.0 * s * p)))
     res = bracketed_root(
-        g, lo, hi, 1e-12 * hi, rtol, maxiter, f_lo=g_lo, f_hi=g_hi, x_first=q_hint,
+        g,
+        lo,
+        hi,
+        1e-12 * hi,
+        rtol,
+        maxiter,
+        f_lo=g_lo,
+        f_hi=g_hi,
+        x_first=q_hint,
         method="anderson-bjorck",
     )
     found = res.converged if bad is None else res.converged & ~bad

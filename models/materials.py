@@ -33,24 +33,34 @@ MATERIALS: dict[str, Material] = {
     m.name: m
     for m in (
         Material(
-            "6063-T5", 209.0, 2700.0,
+            "6063-T5",
+            209.0,
+            2700.0,
             f"{_AA}: k 209 W/m K at 25 C (121 Btu/ft h F), density 2.70 g/cm3",
         ),
         Material(
-            "6063-T6", 201.0, 2700.0,
+            "6063-T6",
+            201.0,
+            2700.0,
             f"{_AA}: k 116 Btu/ft h F = 201 W/m K at 20 C, density 2.70 g/cm3",
         ),
         Material(
-            "6061-T6", 167.0, 2700.0,
+            "6061-T6",
+            167.0,
+            2700.0,
             f"{_AA}: k 167 W/m K at 25 C, density 2.70 g/cm3",
         ),
         Material(
-            "1050A", 222.0, 2710.0,
+            "1050A",
+            222.0,
+            2710.0,
             "EN AW-1050A data sheet (typical): k 222 W/m K at 25 C, density 2.71 g/cm3; "
             "other 1050 data sheets give 225-231 W/m K in the soft (O) temper",
         ),
         Material(
-            "C11000", 388.0, 8890.0,
+            "C11000",
+            388.0,
+            8890.0,
             "ETP copper (Cu-ETP, CW004A): k 388 W/m K at 20 C, ASM Metals Handbook value, "
             "recalled from memory (data sheets give 385-394 W/m K); density 8.89 g/cm3 is "
             "the IEC standard value for copper (1913)",
@@ -113,8 +123,7 @@ _EMISSIVITY_TABLE: dict[str, tuple[float, str]] = {
     ),
     "painted": (
         0.90,
-        "non-metallic paint or powder coat of any colour; tables list lacquers and paints "
-        "0.8-0.98",
+        "non-metallic paint or powder coat of any colour; tables list lacquers and paints 0.8-0.98",
     ),
     "polished_copper": (
         0.03,

@@ -49,8 +49,9 @@ def _f(x: ArrayLike) -> FloatArray:
 def _buoyancy_group(delta_T_K: ArrayLike, T_film_K: ArrayLike, p_Pa: ArrayLike):
     """P = rho^2 cp g beta |dT| / (mu k) in 1/m3 (beta = 1/T_film), and the air conductivity."""
     air = air_properties(T_film_K, p_Pa)
-    rho, cp, mu, k = (_f(v) for v in (air.density, air.specific_heat, air.viscosity,
-                                      air.conductivity))
+    rho, cp, mu, k = (
+        _f(v) for v in (air.density, air.specific_heat, air.viscosity, air.conductivity)
+    )
     P = rho * rho * cp * G0 * np.abs(_f(delta_T_K)) / (_f(T_film_K) * mu * k)
     return P, k
 
@@ -434,29 +435,79 @@ def _sink_terms(dT, N, t, H, s, L, k_s, Ta, p, eps, eps_cav_spread):
     g = g_ch + g_pl + g_rad
     n_eff = (g_ch * n_ch + g_pl * n_pl + g_rad * n_rad) / np.where(g > 0.0, g, 1.0)
     return dict(
-        g_conv=g_ch + g_pl, g_rad=g_rad, n_eff=n_eff, h_ch=h_ch, h_pl=h_pl, h_bb=h_bb,
-        eta_i=eta_i, eta_o=eta_o, El=El, Ra_L=Ra_L, T_film=T_film,
+        g_conv=g_ch + g_pl,
+        g_rad=g_rad,
+        n_eff=n_eff,
+        h_ch=h_ch,
+        h_pl=h_pl,
+        h_bb=h_bb,
+        eta_i=eta_i,
+        eta_o=eta_o,
+        El=El,
+        Ra_L=Ra_L,
+        T_film=T_film,
     )
 
 
-def _prepare(fin_count, fin_thickness_m, fin_height_m, base_width_m, length_m,
-             conductivity_W_per_mK, T_ambient_K, p_Pa, emissivity, *extra):
+def _prepare(
+    fin_count,
+    fin_thickness_m,
+    fin_height_m,
+    base_width_m,
+    length_m,
+    conductivity_W_per_mK,
+    T_ambient_K,
+    p_Pa,
+    emissivity,
+    *extra,
+):
     arrays = np.broadcast_arrays(
-        *(_f(a) for a in (fin_count, fin_thickness_m, fin_height_m, base_width_m, length_m,
-                          conductivity_W_per_mK, T_ambient_K, p_Pa, emissivity, *extra))
+        *(
+            _f(a)
+            for a in (
+                fin_count,
+                fin_thickness_m,
+                fin_height_m,
+                base_width_m,
+                length_m,
+                conductivity_W_per_mK,
+                T_ambient_K,
+                p_Pa,
+                emissivity,
+                *extra,
+            )
+        )
     )
     N, t, H, W, L, k_s, Ta, p, eps = (np.array(a, dtype=float) for a in arrays[:9])
     N = np.rint(N)
     with np.errstate(invalid="ignore", divide="ignore"):
         s = (W - N * t) / (N - 1.0)
     valid = (
-        (N >= 2.0) & (t > 0.0) & (H > 0.0) & (L > 0.0) & (s > 0.0) & (k_s > 0.0)
-        & (Ta > 0.0) & (p > 0.0) & (eps >= 0.0) & (eps <= 1.0)
+        (N >= 2.0)
+        & (t > 0.0)
+        & (H > 0.0)
+        & (L > 0.0)
+        & (s > 0.0)
+        & (k_s > 0.0)
+        & (Ta > 0.0)
+        & (p > 0.0)
+        & (eps >= 0.0)
+        & (eps <= 1.0)
     )
     one = np.ones_like(N)
     # safe stand-ins where invalid, so the arithmetic stays finite; results are NaN-ed later
-    N, t, H, L, k_s, Ta, p = (np.where(valid, a, d * one) for a, d in (
-        (N, 2.0), (t, 1e-3), (H, 1e-2), (L, 1e-1), (k_s, 200.0), (Ta, 300.0), (p, 101325.0)))
+    N, t, H, L, k_s, Ta, p = (
+        np.where(valid, a, d * one)
+        for a, d in (
+            (N, 2.0),
+            (t, 1e-3),
+            (H, 1e-2),
+            (L, 1e-1),
+            (k_s, 200.0),
+            (Ta, 300.0),
+            (p, 101325.0),
+        )
+    )
     s = np.where(valid, s, 1e-2)
     eps = np.where(valid, eps, 0.5)
     a_open = s * L + 2.0 * s * H  # tip slot and the two channel ends
@@ -469,8 +520,10 @@ def _prepare(fin_count, fin_thickness_m, fin_height_m, base_width_m, length_m,
 
 def _in_range(valid, terms, p):
     return (
-        valid & air_in_range(terms["T_film"], p)
-        & (terms["Ra_L"] >= RA_PLATE_MIN) & (terms["Ra_L"] <= RA_PLATE_MAX)
+        valid
+        & air_in_range(terms["T_film"], p)
+        & (terms["Ra_L"] >= RA_PLATE_MIN)
+        & (terms["Ra_L"] <= RA_PLATE_MAX)
     )
 
 
@@ -528,23 +581,46 @@ def natural_sink_heat(
     (18.9, 5.5)
     """
     (N, t, H, s, L, k_s, Ta, p, eps, eps_cav, spread, valid, (dT,)) = _prepare(
-        fin_count, fin_thickness_m, fin_height_m, base_width_m, length_m,
-        conductivity_W_per_mK, T_ambient_K, p_Pa, emissivity, delta_T_K)
+        fin_count,
+        fin_thickness_m,
+        fin_height_m,
+        base_width_m,
+        length_m,
+        conductivity_W_per_mK,
+        T_ambient_K,
+        p_Pa,
+        emissivity,
+        delta_T_K,
+    )
     valid = valid & (dT >= 0.0)
     dT = np.where(valid, dT, 1.0)
     terms = _sink_terms(dT, N, t, H, s, L, k_s, Ta, p, eps, spread)
-    return _pack(NaturalSinkHeat, valid, _in_range(valid, terms, p), dict(
-        heat_convection_W=terms["g_conv"] * dT, heat_radiation_W=terms["g_rad"] * dT,
-    ), terms, eps_cav, s)
+    return _pack(
+        NaturalSinkHeat,
+        valid,
+        _in_range(valid, terms, p),
+        dict(
+            heat_convection_W=terms["g_conv"] * dT,
+            heat_radiation_W=terms["g_rad"] * dT,
+        ),
+        terms,
+        eps_cav,
+        s,
+    )
 
 
 def _pack(cls, valid, in_range, head, terms, eps_cav, s, tail=None):
     fields = dict(head)
     fields.update(
-        h_channel_W_per_m2K=terms["h_ch"], h_outer_W_per_m2K=terms["h_pl"],
-        h_radiation_W_per_m2K=terms["h_bb"], channel_emissivity=eps_cav,
-        fin_efficiency=terms["eta_i"], fin_efficiency_outer=terms["eta_o"],
-        elenbaas_number=terms["El"], rayleigh_length=terms["Ra_L"], gap_m=s,
+        h_channel_W_per_m2K=terms["h_ch"],
+        h_outer_W_per_m2K=terms["h_pl"],
+        h_radiation_W_per_m2K=terms["h_bb"],
+        channel_emissivity=eps_cav,
+        fin_efficiency=terms["eta_i"],
+        fin_efficiency_outer=terms["eta_o"],
+        elenbaas_number=terms["El"],
+        rayleigh_length=terms["Ra_L"],
+        gap_m=s,
     )
     fields.update(tail or {})
     out = {}
@@ -600,8 +676,17 @@ def fan_stopped_base_rise(
     40.0
     """
     (N, t, H, s, L, k_s, Ta, p, eps, eps_cav, spread, valid, (Q,)) = _prepare(
-        fin_count, fin_thickness_m, fin_height_m, base_width_m, length_m,
-        conductivity_W_per_mK, T_ambient_K, p_Pa, emissivity, power_W)
+        fin_count,
+        fin_thickness_m,
+        fin_height_m,
+        base_width_m,
+        length_m,
+        conductivity_W_per_mK,
+        T_ambient_K,
+        p_Pa,
+        emissivity,
+        power_W,
+    )
     valid = valid & (Q >= 0.0) & np.isfinite(Q)
     positive = valid & (Q > 0.0)
     Qs = np.where(positive, Q, 1.0)
@@ -620,6 +705,17 @@ def fan_stopped_base_rise(
     q_rad = terms["g_rad"] * dT
     residual = np.where(positive, np.abs(Qs - q_conv - q_rad) / Qs, 0.0)
     in_range = _in_range(valid, terms, p) & (residual < 1e-6)
-    return _pack(FanStoppedResult, valid, in_range, dict(
-        base_rise_K=dT, heat_convection_W=q_conv, heat_radiation_W=q_rad,
-    ), terms, eps_cav, s, tail=dict(residual=residual))
+    return _pack(
+        FanStoppedResult,
+        valid,
+        in_range,
+        dict(
+            base_rise_K=dT,
+            heat_convection_W=q_conv,
+            heat_radiation_W=q_rad,
+        ),
+        terms,
+        eps_cav,
+        s,
+        tail=dict(residual=residual),
+    )

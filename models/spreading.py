@@ -31,7 +31,9 @@ because they could not be verified.
 
 from __future__ import annotations
 
+import functools
 from collections.abc import Sequence
+from dataclasses import dataclass
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
@@ -48,6 +50,21 @@ MAX_MODES = 100
 #: elements per (design x mode x mode) work array; sets the block size (0.5 MB each: small
 #: blocks avoid re-faulting fresh memory pages for every temporary, which was the main cost)
 _BLOCK_ELEMENTS = 60_000
+#: the grouped method interpolates phi(beta) - 1 in u = ln(beta * 1 m) on panels of this width
+#: laid on a fixed grid (edges at whole multiples), one polynomial of degree _PANEL_DEGREE per
+#: panel through Chebyshev-Lobatto nodes; pointwise error below 3e-7 of |phi| for any t, Bi
+_PANEL_WIDTH = 1.5
+_PANEL_DEGREE = 14
+#: modes with beta t_min > _BETA_T_CUT are left out of the phi - 1 correction:
+#: |phi - 1| <= 2 exp(-2 beta t) < 5e-16 there
+_BETA_T_CUT = 18.0
+#: designs per block of the grouped method (a block's work array stays within the CPU cache)
+_DESIGN_BLOCK = 2048
+#: modes per chunk when a layout table is built (bounds its memory for large mode counts)
+_MODE_CHUNK = 1 << 14
+#: method "auto" uses the grouped method for a group of at least this many designs, else direct
+_MIN_GROUP = 32
+_METHODS = ("auto", "grouped", "direct")
 
 
 # ----------------------------------------------------------------------------- simple parts
@@ -175,8 +192,16 @@ def _mode_kernel(lam: FloatArray, dl: FloatArray, t: FloatArray, r: FloatArray) 
 def _valid_plate(*arrays: FloatArray) -> FloatArray:
     a, b, t, k, h = arrays
     return (
-        (a > 0) & (b > 0) & (t > 0) & (k > 0) & (h > 0)
-        & np.isfinite(a) & np.isfinite(b) & np.isfinite(t) & np.isfinite(k) & ~np.isnan(h)
+        (a > 0)
+        & (b > 0)
+        & (t > 0)
+        & (k > 0)
+        & (h > 0)
+        & np.isfinite(a)
+        & np.isfinite(b)
+        & np.isfinite(t)
+        & np.isfinite(k)
+        & ~np.isnan(h)
     )
 
 
@@ -201,6 +226,7 @@ def spreading_resistance_centred(
     modes_per_size: float = MODES_PER_SIZE,
     max_modes: int = MAX_MODES,
     extrapolate: bool = True,
+    method: str = "auto",
 ) -> FloatArray:
     """Return the spreading resistance of one centred rectangular source, K/W (excl. 1-D, film).
 
@@ -220,10 +246,13 @@ def spreading_resistance_centred(
     Richardson step on the J and J/2 partial sums removes most of it. Tolerance with the
     defaults: below 0.5 % of R_sp while the cap is not reached (c/a and d/b >= 0.08; measured
     at most 0.2 %), below 1 % down to c/a, d/b = 0.02 (cap reached; measured at most 0.84 %).
+    ``method`` as in ``source_influence_matrix``: "grouped" evaluates the same modes through the
+    per-(a, b, c, d) table (within 1e-6 of "direct"), "auto" takes it for groups of >= 16.
 
     Parameters: a base length, m; b base width, m; t base thickness, m; k conductivity, W/(m K);
     h_eff fin-side coefficient, W/(m^2 K) (+inf allowed); c source length (along a), m; d source
-    width (along b), m. Arrays broadcast together (designs).
+    width (along b), m. Arrays broadcast together (designs). method "auto", "grouped" or
+    "direct".
 
     Returns: R_sp in K/W, >= 0 (0 when the source covers the base); broadcast shape of inputs.
 
@@ -239,6 +268,7 @@ def spreading_resistance_centred(
     solution gives 0.2340 K/W; the published half-space limit k sqrt(cd) R_sp -> 0.4732 is
     reproduced for small, deep sources).
     """
+    _check_method(method)
     arr = np.broadcast_arrays(*(np.asarray(v, dtype=float) for v in (a, b, t, k, h_eff, c, d)))
     shape = arr[0].shape
     a_, b_, t_, k_, h_, c_, d_ = (v.ravel() for v in arr)
@@ -248,10 +278,26 @@ def spreading_resistance_centred(
     N = _mode_counts(b_, d_, modes_per_size, MIN_MODES, max_modes) // 2
     out = np.full(a_.shape, np.nan)
     idx = np.flatnonzero(ok)
+    if method != "direct":  # the eccentric table with the source at the centre (odd modes: 0)
+        opts = (modes_per_size, max_modes, extrapolate)
+        small = []
+        for rows in _groups([a_, b_, c_, d_], idx):
+            if method == "grouped" or rows.size >= _MIN_GROUP:
+                i0 = rows[0]
+                lay = (
+                    float(a_[i0]),
+                    float(b_[i0]),
+                    ([a_[i0] / 2], [b_[i0] / 2], [c_[i0]], [d_[i0]]),
+                )
+                _grouped_rows(rows, lay, t_, k_, h_, None, opts, out, with_one_d=False)
+            else:
+                small.append(rows)
+        idx = np.concatenate(small) if small else idx[:0]
     for sel in _blocks(M[idx], N[idx]):
         i = idx[sel]
-        out[i] = _centred_block(a_[i], b_[i], t_[i], k_[i], h_[i], c_[i], d_[i], M[i], N[i],
-                                extrapolate)
+        out[i] = _centred_block(
+            a_[i], b_[i], t_[i], k_[i], h_[i], c_[i], d_[i], M[i], N[i], extrapolate
+        )
     return out.reshape(shape)
 
 
@@ -376,9 +422,14 @@ def _on_base(a, b, x, y, c, d) -> NDArray[np.bool_]:
     a, b = a[:, None], b[:, None]
     with np.errstate(invalid="ignore"):
         return (
-            (c > 0) & (d > 0) & np.isfinite(c) & np.isfinite(d)
-            & (x - c / 2 >= -tol) & (x + c / 2 <= a + tol)
-            & (y - d / 2 >= -tol) & (y + d / 2 <= b + tol)
+            (c > 0)
+            & (d > 0)
+            & np.isfinite(c)
+            & np.isfinite(d)
+            & (x - c / 2 >= -tol)
+            & (x + c / 2 <= a + tol)
+            & (y - d / 2 >= -tol)
+            & (y + d / 2 <= b + tol)
         )
 
 
@@ -433,8 +484,10 @@ def source_layout_problems(
             )
     for i in range(s):
         for j in range(i + 1, s):
-            if (abs(xs[i] - xs[j]) < (c[i] + c[j]) / 2 - tol
-                    and abs(ys[i] - ys[j]) < (d[i] + d[j]) / 2 - tol):
+            if (
+                abs(xs[i] - xs[j]) < (c[i] + c[j]) / 2 - tol
+                and abs(ys[i] - ys[j]) < (d[i] + d[j]) / 2 - tol
+            ):
                 msgs.append(
                     f"sources '{names[i]}' and '{names[j]}' overlap; expected separate footprints"
                 )
@@ -458,20 +511,25 @@ def heat_source_arrays(sources: Sequence[HeatSource]) -> dict[str, FloatArray]:
 
     Example: one 20 W source, 10 mm x 15 mm, centred: x = [nan], c = [0.01], d = [0.015].
     """
+
     def col(f):
         return np.array([np.nan if f(s) is None else float(f(s)) for s in sources], dtype=float)
 
     return dict(
-        x=col(lambda s: s.x_m), y=col(lambda s: s.y_m), c=col(lambda s: s.length_m),
-        d=col(lambda s: s.width_m), power=col(lambda s: s.power_W),
+        x=col(lambda s: s.x_m),
+        y=col(lambda s: s.y_m),
+        c=col(lambda s: s.length_m),
+        d=col(lambda s: s.width_m),
+        power=col(lambda s: s.power_W),
     )
 
 
-def _broadcast(design, sources):
+def _broadcast(design, sources, centre=True):
     """Design arrays -> float (n,); footprint arrays ((S,) or (n, S)) -> float (n, S).
 
-    The first two design arrays are the base length and width: NaN x or y (first two footprint
-    arrays) are replaced by the base centre."""
+    The first two design arrays are the base length and width: with ``centre``, NaN x or y
+    (first two footprint arrays) are replaced by the base centre; without, every result is a
+    read-only broadcast view (no copy)."""
     dz = [np.atleast_1d(np.asarray(v, dtype=float)) for v in design]
     sz = [np.atleast_1d(np.asarray(v, dtype=float)) for v in sources]
     if any(v.ndim != 1 for v in dz) or any(v.ndim > 2 for v in sz):
@@ -480,6 +538,8 @@ def _broadcast(design, sources):
     s = np.broadcast_shapes(*(v.shape[-1:] for v in sz))[0]
     dz = [np.broadcast_to(v, (n,)) for v in dz]
     sz = [np.broadcast_to(v if v.ndim == 2 else v[None, :], (n, s)) for v in sz]
+    if not centre:
+        return dz, sz
     a, b = dz[0], dz[1]
     sz[0] = np.where(np.isnan(sz[0]), a[:, None] / 2, sz[0])
     sz[1] = np.where(np.isnan(sz[1]), b[:, None] / 2, sz[1])
@@ -500,6 +560,7 @@ def source_influence_matrix(
     modes_per_size: float = MODES_PER_SIZE,
     max_modes: int = MAX_MODES,
     extrapolate: bool = True,
+    method: str = "auto",
 ) -> FloatArray:
     """Return the influence matrix R[n, j, i]: mean rise of footprint j per watt into source i, K/W.
 
@@ -521,13 +582,24 @@ def source_influence_matrix(
     (M/2, N/2) partial sums (error ~ 1/M^2). Tolerance with the defaults: below 0.5 % of the
     design's largest spreading part while the cap is not reached (every c/a, d/b >= 0.08;
     measured at most 0.15 % over 95 random 3-source designs), below 1 % down to footprints of
-    2 % of the base (cap reached). Each design's result is independent of the others in the
-    call (modes are masked per design).
+    2 % of the base (cap reached).
+
+    Method: "direct" sums the modes design by design. "grouped" uses that the mode weights
+    depend only on (a, b) and the layout, the design only through phi(beta; t, h_eff / k):
+    per group of designs sharing (a, b, x, y, c, d) it splits the sum into
+    sum w/beta (exact, once per group) + sum w (phi - 1)/beta, and the second sum, which only
+    low beta reach (phi - 1 ~ 2 exp(-2 beta t)), is collapsed onto a few dozen interpolation
+    nodes in ln(beta) (piecewise Chebyshev, exact for any sign of the weights); per design only
+    (phi(node) - 1) @ node weights remains. Its deviation from "direct" (same truncation) is
+    below 1e-6 of the design's largest spreading part (tests/test_spreading.py; measured about
+    1e-8). "auto" (default) takes "grouped" for groups of at least 16 designs, "direct" for
+    smaller ones, so a design's result may depend on the rest of the call by that 1e-6 at most.
 
     Parameters: a, b base length (along the flow) and width, m, shape (n,) or scalar; t base
     thickness, m; k conductivity, W/(m K); h_eff fin-side coefficient, W/(m^2 K) (+inf allowed);
     x, y footprint centres (from the inlet edge, from the left edge), m, NaN = centred; c, d
-    footprint length and width, m; x, y, c, d of shape (S,) or (n, S).
+    footprint length and width, m; x, y, c, d of shape (S,) or (n, S); method "auto",
+    "grouped" or "direct" (anything else raises ValueError: a programming error, not data).
 
     Returns: array (n, S, S) in K/W; rows of designs with invalid plates or with a source off
     the base are NaN (see ``check_sources_on_base``). Overlapping footprints are computed by
@@ -540,7 +612,7 @@ def source_influence_matrix(
 
     Example: a single source covering the base gives R = R_1D + R_film exactly.
     """
-    return _run(a, b, t, k, h_eff, x, y, c, d, None, modes_per_size, max_modes, extrapolate)
+    return _run(a, b, t, k, h_eff, x, y, c, d, None, modes_per_size, max_modes, extrapolate, method)
 
 
 def source_temperature_rise(
@@ -558,6 +630,7 @@ def source_temperature_rise(
     modes_per_size: float = MODES_PER_SIZE,
     max_modes: int = MAX_MODES,
     extrapolate: bool = True,
+    method: str = "auto",
 ) -> FloatArray:
     """Return the mean temperature rise of each source footprint above the sink-side reference, K.
 
@@ -566,18 +639,27 @@ def source_temperature_rise(
     forming R: W(m, n) = sum_i Q_i eps_m eps_n P_i(m) Q_i(n), theta_j = 1/(a b) sum_mn
     P_j(m) Q_j(n) g(beta_mn) W(m, n). It INCLUDES the 1-D and film parts: for one source,
     theta / Q = R_1D + R_film + R_sp. "Sink-side reference" is the temperature that h_eff refers
-    to (the fin array's reference, e.g. the air, when h_eff = 1/(R_sink a b)).
+    to (the fin array's reference, e.g. the air, when h_eff = 1/(R_sink a b)). With the
+    "grouped" method (see ``source_influence_matrix``):
+
+        theta_j = Q_tot (t/k + 1/h_eff)/(a b) + [sum_i Q_i (S0_ji + sum_g C_gji (phi(beta_g) - 1))]
+                  / (a b k),
+
+    S0 and the node weights C depending only on (a, b) and the layout (computed once per group
+    and kept in a small cache), beta_g the interpolation nodes.
 
     Truncation and tolerance: as ``source_influence_matrix`` (below 0.5 % of the spreading part
     with the defaults while the cap of ``max_modes`` modes per direction is not reached, below
-    1 % for footprints down to 2 % of the base). Work is done in small blocks of designs: memory
-    does not grow with the number of modes (n = 1e5 designs, 4 sources, 100 x 100 modes: about
-    15 s of one core, under 100 MB resident; a population of 100: about 15 ms).
+    1 % for footprints down to 2 % of the base; "grouped" within 1e-6 of "direct").
+    Cost, one core, 100 x 100 modes: "direct" about 150 us per design with 4 sources; "grouped"
+    about 1 ms per new layout plus about 0.5 us per design (1e5 designs, 4 sources: about
+    0.05 s; 1e6: about 0.5 s, about 150 MB peak for the whole call).
 
     Parameters: a, b base length (along the flow) and width, m, shape (n,) or scalar; t base
     thickness, m; k conductivity, W/(m K); h_eff fin-side coefficient, W/(m^2 K) (+inf allowed);
     x, y footprint centres from the inlet and left edges, m (NaN = centred); c, d footprint length
-    and width, m; power heat into each footprint, W; x, y, c, d, power of shape (S,) or (n, S).
+    and width, m; power heat into each footprint, W; x, y, c, d, power of shape (S,) or (n, S);
+    method "auto" (default), "grouped" or "direct" (see ``source_influence_matrix``).
 
     Returns: array (n, S) of mean footprint temperature rises, K. Designs with an invalid plate
     or a source off the base: NaN row (flag it with ``check_sources_on_base``).
@@ -589,32 +671,72 @@ def source_temperature_rise(
     Example: one source covering a 0.1 m x 0.1 m, 5 mm thick base, k = 200, h_eff = 1000,
     Q = 10 W: theta = 10 * (0.0025 + 0.1) = 1.025 K.
     """
-    return _run(a, b, t, k, h_eff, x, y, c, d, power, modes_per_size, max_modes, extrapolate)
+    return _run(
+        a, b, t, k, h_eff, x, y, c, d, power, modes_per_size, max_modes, extrapolate, method
+    )
 
 
-def _run(a, b, t, k, h, x, y, c, d, power, per_size, max_modes, extrapolate):
+def _check_method(method: str) -> None:
+    if method not in _METHODS:
+        raise ValueError(f"method: {method!r}; expected one of {', '.join(_METHODS)}")
+
+
+def _run(a, b, t, k, h, x, y, c, d, power, per_size, max_modes, extrapolate, method):
+    _check_method(method)
     src = (x, y, c, d) if power is None else (x, y, c, d, power)
-    (a, b, t, k, h), src = _broadcast((a, b, t, k, h), src)
+    (a, b, t, k, h), src = _broadcast((a, b, t, k, h), src, centre=False)
     x, y, c, d = src[:4]
+    q = None if power is None else src[4]
     n, s = x.shape
-    # overlapping footprints do not invalidate the physics (superposition), only the study
-    ok = _valid_plate(a, b, t, k, h) & _on_base(a, b, x, y, c, d).all(axis=1)
-    if power is None:
-        out = np.full((n, s, s), np.nan)
-    else:
-        q = src[4]
-        ok &= np.isfinite(q).all(axis=1)
-        out = np.full((n, s), np.nan)
-    if s == 0:
+    out = np.full((n, s, s) if q is None else (n, s), np.nan)
+    if s == 0 or n == 0:
         return out
+    ok = _valid_plate(a, b, t, k, h)
+    if q is not None:
+        ok &= np.isfinite(q).all(axis=1)
+    opts = (per_size, max_modes, extrapolate)
+    layout = None if method == "direct" else _common_layout(a, b, (x, y, c, d))
+    if layout is not None:  # the usual case: one plate size and layout for the whole call
+        a0, b0, (x0, y0, c0, d0) = layout
+        on = _on_base(np.array([a0]), np.array([b0]), x0[None], y0[None], c0[None], d0[None])
+        rows = np.flatnonzero(ok) if on.all() else np.zeros(0, dtype=np.int64)
+        if method == "grouped" or rows.size >= _MIN_GROUP:
+            _grouped_rows(rows, layout, t, k, h, q, opts, out, with_one_d=True)
+            return out
+    x = np.where(np.isnan(x), a[:, None] / 2, x)
+    y = np.where(np.isnan(y), b[:, None] / 2, y)
+    # overlapping footprints do not invalidate the physics (superposition), only the study
+    ok &= _on_base(a, b, x, y, c, d).all(axis=1)
     idx = np.flatnonzero(ok)
-    M = _mode_counts(a, c.min(axis=1), per_size, MIN_MODES, max_modes)
-    N = _mode_counts(b, d.min(axis=1), per_size, MIN_MODES, max_modes)
-    for sel in _blocks(M[idx], N[idx]):
+    if method != "direct":
+        small = []
+        for rows in _groups([a, b, x, y, c, d], idx):
+            if method == "grouped" or rows.size >= _MIN_GROUP:
+                i0 = rows[0]
+                layout = (float(a[i0]), float(b[i0]), (x[i0], y[i0], c[i0], d[i0]))
+                _grouped_rows(rows, layout, t, k, h, q, opts, out, with_one_d=True)
+            else:
+                small.append(rows)
+        idx = np.concatenate(small) if small else idx[:0]
+    M = _mode_counts(a[idx], c[idx].min(axis=1, initial=np.inf), per_size, MIN_MODES, max_modes)
+    N = _mode_counts(b[idx], d[idx].min(axis=1, initial=np.inf), per_size, MIN_MODES, max_modes)
+    for sel in _blocks(M, N):
         i = idx[sel]
-        qi = None if power is None else q[i]
+        qi = None if q is None else q[i]
         out[i] = _eccentric_block(
-            a[i], b[i], t[i], k[i], h[i], x[i], y[i], c[i], d[i], M[i], N[i], qi, extrapolate
+            a[i],
+            b[i],
+            t[i],
+            k[i],
+            h[i],
+            x[i],
+            y[i],
+            c[i],
+            d[i],
+            M[sel],
+            N[sel],
+            qi,
+            extrapolate,
         )
     return out
 
@@ -677,3 +799,206 @@ def _eccentric_block(a, b, t, k, h, x, y, c, d, M, N, q, extrapolate):
         full = full + (full - half) / 3.0  # the (0,0) term cancels in full - half
     scale = (a * b * k)[:, None, None] if q is None else (a * b * k)[:, None]
     return full / scale
+
+
+# ----------------------------------------------------------------------------- grouped method
+def _constant(v: FloatArray) -> bool:
+    """True when every design (first axis) holds the same values (NaN equal to NaN)."""
+    if v.shape[0] <= 1 or v.strides[0] == 0:
+        return True
+    v0 = v[0]
+    same = v == v0
+    if not same.all():
+        same |= np.isnan(v) & np.isnan(v0)
+    return bool(same.all())
+
+
+def _common_layout(a, b, sources):
+    """(a, b, (x, y, c, d)) with x, y centred, when all designs share them, else None."""
+    if not all(_constant(v) for v in (a, b, *sources)):
+        return None
+    a0, b0 = float(a[0]), float(b[0])
+    x0, y0, c0, d0 = (np.array(v[0], dtype=float) for v in sources)
+    x0[np.isnan(x0)] = a0 / 2
+    y0[np.isnan(y0)] = b0 / 2
+    return a0, b0, (x0, y0, c0, d0)
+
+
+def _groups(cols: list[FloatArray], idx: NDArray[np.int64]) -> list[NDArray[np.int64]]:
+    """Split the designs ``idx`` into groups of equal rows of ``cols`` ((n,) or (n, S) arrays)."""
+    if idx.size == 0:
+        return []
+    # hash each design by a fixed random projection, then check that no hash collided
+    rng = np.random.default_rng(12345)
+    sub = [v[idx].reshape(idx.size, -1) for v in cols]
+    proj = np.zeros(idx.size)
+    for v in sub:
+        proj += v @ rng.uniform(0.5, 1.5, v.shape[1])
+    _, first, inv = np.unique(proj, return_index=True, return_inverse=True)
+    inv = inv.ravel()
+    rep = first[inv]
+    if not all(np.array_equal(v, v[rep]) for v in sub):
+        _, inv = np.unique(np.hstack(sub), axis=0, return_inverse=True)
+        inv = inv.ravel()
+    order = np.argsort(inv, kind="stable")
+    cuts = np.flatnonzero(np.diff(inv[order])) + 1
+    return np.split(idx[order], cuts)
+
+
+@dataclass(frozen=True)
+class _LayoutTable:
+    """The design-independent part of the mode sums for one plate size and source layout.
+
+    R_ji k a b - (t + k/h) = s0[j, i] + sum_g coef[g, j, i] (phi(beta[g]) - 1)."""
+
+    s0: FloatArray  # (S, S): sum over the modes other than (0, 0) of weight / beta, m
+    beta: FloatArray  # (B,) interpolation nodes, increasing, 1/m
+    coef: FloatArray  # (B, S, S): node weights of phi - 1, m
+
+
+def _chebyshev_lobatto(p: int) -> tuple[FloatArray, FloatArray]:
+    """Nodes -cos(pi l / p) on [-1, 1] and their barycentric weights."""
+    l = np.arange(p + 1)
+    w = (-1.0) ** l
+    w[[0, -1]] *= 0.5
+    return -np.cos(np.pi * l / p), w
+
+
+def _lagrange_rows(xi: FloatArray, nodes: FloatArray, w: FloatArray) -> FloatArray:
+    """(K, p+1): the Lagrange basis through ``nodes`` at the points ``xi`` (barycentric form)."""
+    diff = xi[:, None] - nodes[None, :]
+    hit = diff == 0.0
+    with np.errstate(divide="ignore", invalid="ignore"):
+        lag = w / diff
+        lag /= lag.sum(axis=1, keepdims=True)
+    rows = hit.any(axis=1)
+    lag[rows] = hit[rows]
+    return lag
+
+
+@functools.lru_cache(maxsize=64)
+def _layout_table(
+    a: float,
+    b: float,
+    x: tuple,
+    y: tuple,
+    c: tuple,
+    d: tuple,
+    per_size: float,
+    max_modes: int,
+    extrapolate: bool,
+) -> _LayoutTable:
+    """Build the table of one layout (cached: the result depends only on the arguments)."""
+    x, y, c, d = (np.array(v, dtype=float)[None, :] for v in (x, y, c, d))
+    s = x.shape[1]
+    M = int(_mode_counts(np.array(a), c.min(), per_size, MIN_MODES, max_modes))
+    N = int(_mode_counts(np.array(b), d.min(), per_size, MIN_MODES, max_modes))
+    mm, nn = np.arange(M + 1), np.arange(N + 1)
+    lam, dl = np.pi * mm / a, np.pi * nn / b
+    px = _footprint_mean(lam[None, :], x, c)[0] * np.where(mm == 0, 1.0, 2.0)  # eps_m P_i(m)
+    py = _footprint_mean(dl[None, :], y, d)[0] * np.where(nn == 0, 1.0, 2.0)
+    # footprint averages are taken with eps once: P_j eps P_i = (eps P_j)(eps P_i) / eps
+    inv_ex = np.where(mm == 0, 1.0, 0.5)
+    inv_ey = np.where(nn == 0, 1.0, 0.5)
+    beta_min = np.pi / max(a, b)
+    beta_max = np.pi * np.hypot(M / a, N / b)
+    u0, u1 = np.log(beta_min), np.log(beta_max)
+    n_pan = max(1, int(np.ceil((u1 - u0) / _PANEL_WIDTH)))
+    width = max(u1 - u0, 1e-3) / n_pan
+    p = _PANEL_DEGREE
+    xi_nodes, bw = _chebyshev_lobatto(p)
+    u_nodes = u0 + width * (np.arange(n_pan)[:, None] + (xi_nodes[:p] + 1.0) / 2.0)
+    beta_nodes = np.exp(np.append(u_nodes.ravel(), u0 + width * n_pan))
+    s0 = np.zeros((s, s))
+    coef = np.zeros((beta_nodes.size, s, s))
+    step = max(1, _MODE_CHUNK // (N + 1))
+    for m0 in range(0, M + 1, step):  # chunks of rows m of the mode grid
+        mi, ni = (v.ravel() for v in np.meshgrid(mm[m0 : m0 + step], nn, indexing="ij"))
+        keep = (mi > 0) | (ni > 0)
+        mi, ni = mi[keep], ni[keep]
+        beta = np.hypot(lam[mi], dl[ni])
+        v = inv_ex[mi] * inv_ey[ni] / beta
+        if extrapolate:  # Richardson: (4 S(M, N) - S(M/2, N/2)) / 3 as mode weights
+            v *= np.where((mi <= M // 2) & (ni <= N // 2), 1.0, 4.0 / 3.0)
+        G = px[:, mi] * py[:, ni]  # (S, K): eps_m eps_n P_j(m) Q_j(n)
+        H = (G[:, None, :] * G[None, :, :]).reshape(s * s, -1).T  # (K, S*S)
+        s0 += (v @ H).reshape(s, s)
+        upos = np.maximum(np.log(beta) - u0, 0.0) / width
+        pan = np.minimum(upos.astype(np.int64), n_pan - 1)
+        lag = _lagrange_rows(2.0 * (upos - pan) - 1.0, xi_nodes, bw) * v[:, None]
+        order = np.argsort(pan, kind="stable")
+        bounds = np.searchsorted(pan[order], np.arange(n_pan + 1))
+        for i in range(n_pan):
+            sel = order[bounds[i] : bounds[i + 1]]
+            if sel.size:
+                coef[i * p : i * p + p + 1] += (lag[sel].T @ H[sel]).reshape(p + 1, s, s)
+    for arr in (s0, coef, beta_nodes):
+        arr.flags.writeable = False
+    return _LayoutTable(s0=s0, beta=beta_nodes, coef=coef)
+
+
+def _half_phi_minus_one(beta: FloatArray, t: FloatArray, r: FloatArray) -> FloatArray:
+    """(phi(beta) - 1) / 2 on the grid (designs, nodes); t, r = k/h_eff of shape (nb,).
+
+    (phi - 1)/2 = e (r beta - 1) / (r beta + 1 - e (r beta - 1)), e = exp(-2 beta t): the
+    overflow-free form of (r beta + tanh)/(r beta tanh + 1) - 1 (tanh = (1 - e)/(1 + e)),
+    without cancellation for large beta t; the denominator is >= 1."""
+    e = np.multiply.outer(-2.0 * t, beta)
+    np.exp(e, out=e)
+    rb = np.multiply.outer(r, beta)
+    num = rb - 1.0
+    num *= e
+    rb += 1.0
+    rb -= num
+    num /= rb
+    return num
+
+
+def _grouped_rows(rows, layout, t, k, h, q, opts, out, with_one_d):
+    """Fill ``out[rows]`` for designs sharing ``layout`` = (a, b, (x, y, c, d)), x, y centred.
+
+    out is (n, S) (powers q given), (n, S, S) (q None: influence matrix) or (n,) (one source,
+    q None, spreading part only); ``opts`` = (modes per size, max modes, extrapolate).
+    ``with_one_d`` adds R_1D + R_film (the (0, 0) mode)."""
+    if rows.size == 0:
+        return
+    a0, b0, src = layout
+    per_size, max_modes, extrapolate = opts
+    tab = _layout_table(
+        a0,
+        b0,
+        *(tuple(np.asarray(v, dtype=float).tolist()) for v in src),
+        float(per_size),
+        int(max_modes),
+        bool(extrapolate),
+    )
+    s = tab.s0.shape[0]
+    i0 = rows[0]
+    uniform = q is not None and (q.strides[0] == 0 or bool(np.all(q[rows] == q[i0])))
+    if uniform:  # the usual case: contract the powers into the table once
+        s0, coef = tab.s0 @ q[i0], 2.0 * (tab.coef @ q[i0])
+        q_tot = float(q[i0].sum())
+    else:
+        s0, coef = tab.s0.reshape(-1), 2.0 * tab.coef.reshape(tab.beta.size, -1)
+    area = a0 * b0
+    log_beta = np.log(tab.beta)
+    log_cut = np.log(_BETA_T_CUT)
+    for j0 in range(0, rows.size, _DESIGN_BLOCK):
+        r_ = rows[j0 : j0 + _DESIGN_BLOCK]
+        tb, kb, hb = t[r_], k[r_], h[r_]
+        rb = kb / hb  # 0 for an isothermal fin side
+        # nodes past beta t_min = cut only carry |phi - 1| < 5e-16 (one past the cut is kept)
+        used = min(int(np.searchsorted(log_beta, log_cut - np.log(tb.min()))) + 1, tab.beta.size)
+        val = _half_phi_minus_one(tab.beta[:used], tb, rb) @ coef[:used]
+        val += s0
+        if q is not None and not uniform:
+            val = np.einsum("nji,ni->nj", val.reshape(-1, s, s), q[r_])
+        one_d = (tb + rb) if with_one_d else 0.0
+        scale = 1.0 / (area * kb)
+        if q is not None:
+            qt = q_tot if uniform else q[r_].sum(axis=1)
+            out[r_] = (val + (one_d * qt)[:, None]) * scale[:, None]
+        elif out.ndim == 3:
+            out[r_] = (val.reshape(-1, s, s) + np.reshape(one_d, (-1, 1, 1))) * scale[:, None, None]
+        else:
+            out[r_] = (val[:, 0] + one_d) * scale

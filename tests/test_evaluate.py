@@ -311,3 +311,38 @@ def test_fixed_flow_and_fixed_velocity_agree(mode, check):
         "definition Q = V_approach W H (common practice, no source)",
         rtol=1e-12,
     )
+
+
+def test_zero_clearance_equals_the_ducted_result():
+    d = design(20, seed=4)
+    ducted = evaluate(d, conditions())
+    zero = evaluate(d, conditions(clearance_top_m=0.0, clearance_side_m=0.0))
+    assert ducted.equals(zero)
+
+
+def test_bypass_grows_with_clearance_and_the_fins_keep_the_energy_balance(check):
+    d = design(10, seed=6)
+    fractions = []
+    for c in (1e-3, 4e-3, 1.6e-2):
+        df = evaluate(d, conditions(clearance_top_m=c, clearance_side_m=c / 2))
+        assert df["valid"].all()
+        fractions.append(df["bypass_fraction"].to_numpy())
+    # Simons & Schmidt's equal-pressure-drop estimate (via models.bypass): more clearance,
+    # more bypass -- the published trend (Prstic, Iyengar & Bar-Cohen 2000, recalled)
+    assert np.all(np.diff(np.array(fractions), axis=0) > 0)
+    from models.air import air_properties
+
+    air = air_properties(303.15, 101325.0)
+    heat = (
+        float(air.density)
+        * df["channel_flow_m3_per_s"]
+        * float(air.specific_heat)
+        * (df["outlet_temperature_K"] - 303.15)
+    )
+    check(
+        "heat carried by the fin-channel air / source power, with bypass",
+        heat.to_numpy() / 60.0,
+        np.ones(len(df)),
+        "first law (energy balance of the fin-channel stream)",
+        rtol=1e-9,
+    )
