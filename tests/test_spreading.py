@@ -123,17 +123,21 @@ def _series(plate, sources, powers, **kw):
                                    x, y, c, d, np.asarray(powers, float), **kw)[0]
 
 
+METHODS = ["direct", "grouped"]  # the mode-by-mode sum and the per-layout tabulated sum
+
+
 @pytest.fixture(scope="module")
 def plate_fv():
     return PlateFV(**PLATE, **GRID)
 
 
 # --------------------------------------------------------------------------- vs finite volumes
-def test_single_eccentric_source_vs_finite_volume(check, plate_fv):
+@pytest.mark.parametrize("method", METHODS)
+def test_single_eccentric_source_vs_finite_volume(check, plate_fv, method):
     # source 20 x 16 mm centred at (30, 50) mm: edges on cell faces of the 40 x 40 x 8 grid
     src = [(0.030, 0.050, 0.020, 0.016)]
     fv = plate_fv.mean_rises(src, [[10.0]])[0]
-    series = _series(PLATE, src, [10.0])
+    series = _series(PLATE, src, [10.0], method=method)
     # tolerance 3 %: discretisation error of the 40 x 40 x 8 grid (about 1 % on the centred
     # case, halving with each refinement: see the slow test), series truncation < 0.2 %
     check("mean rise, eccentric source 20x16 mm on 100x80x6 mm Al, 10 W (K)",
@@ -149,22 +153,25 @@ def test_corner_source_vs_finite_volume(check, plate_fv):
           series[0], fv[0], FD_SOURCE + ", 40x40x8 cells", rtol=0.03)  # as above
 
 
-def test_two_sources_vs_finite_volume(check, plate_fv):
+@pytest.mark.parametrize("method", METHODS)
+def test_two_sources_vs_finite_volume(check, plate_fv, method):
     # two sources of different power and size; series superposition vs the FV field of both
     src = [(0.025, 0.020, 0.020, 0.016), (0.070, 0.056, 0.030, 0.024)]
     powers = [8.0, 25.0]
     fv = plate_fv.mean_rises(src, [powers])[0]
-    series = _series(PLATE, src, powers)
+    series = _series(PLATE, src, powers, method=method)
     check("mean rises, two sources 8 W + 25 W (K)", series, fv,
           FD_SOURCE + ", 40x40x8 cells", rtol=0.03)  # FV discretisation, as above
 
 
-def test_mutual_term_and_reciprocity_vs_finite_volume(check, plate_fv):
+@pytest.mark.parametrize("method", METHODS)
+def test_mutual_term_and_reciprocity_vs_finite_volume(check, plate_fv, method):
     # rise of footprint 2 per watt into footprint 1 (and the reverse): the mutual resistance
     src = [(0.025, 0.020, 0.020, 0.016), (0.070, 0.056, 0.030, 0.024)]
     fv = plate_fv.mean_rises(src, [[1.0, 0.0], [0.0, 1.0]])
     R = source_influence_matrix(PLATE["a"], PLATE["b"], PLATE["t"], PLATE["k"], PLATE["h"],
-                                *(np.array([s[i] for s in src]) for i in range(4)))[0]
+                                *(np.array([s[i] for s in src]) for i in range(4)),
+                                method=method)[0]
     # reciprocity of steady conduction (symmetric Green's function): R12 = R21, also in the FV
     check("FV reciprocity R12 / R21", fv[0, 1] / fv[1, 0], 1.0,
           "reciprocity of steady conduction (fact of the trade)", rtol=1e-8)
@@ -430,3 +437,141 @@ def test_truncation_tolerance_when_the_mode_cap_binds():
     ref = source_temperature_rise(*args, modes_per_size=30, max_modes=1500)[:, 0] - one_d
     got = source_temperature_rise(*args)[:, 0] - one_d
     assert np.all(np.abs(got / ref - 1) < 0.01)
+
+
+# --------------------------------------------------------------------------- grouped vs direct
+def _random_layout(rng, s, small=False):
+    """A plate a x b and s footprints on it (2 .. 5 % of the base when ``small``: mode cap)."""
+    a, b = rng.uniform(0.04, 0.4), rng.uniform(0.04, 0.4)
+    lo, hi = (0.02, 0.05) if small else (0.05, 0.6)
+    c, d = rng.uniform(lo, hi, s) * a, rng.uniform(lo, hi, s) * b
+    x = rng.uniform(0, 1, s) * (a - c) + c / 2
+    y = rng.uniform(0, 1, s) * (b - d) + d / 2
+    return a, b, x, y, c, d
+
+
+def _random_plates(rng, n):
+    """Thickness 0.5 .. 50 mm, k 20 .. 400 W/(m K), h_eff 1 .. 1e6 W/(m2 K) and +inf."""
+    t = 10 ** rng.uniform(np.log10(5e-4), np.log10(0.05), n)
+    k = rng.uniform(20.0, 400.0, n)
+    h = 10 ** rng.uniform(0.0, 6.0, n)
+    h[:3] = np.inf
+    return t, k, h
+
+
+@pytest.mark.parametrize("seed", [21, 22])
+def test_grouped_method_matches_direct_sum(seed):
+    # the grouped method evaluates the same truncated, Richardson-extrapolated mode sum as the
+    # direct one, with phi(beta) - 1 interpolated in ln(beta). Required: 1e-4 of the spreading
+    # part. Checked: |grouped - direct| <= 1e-6 of sum_i Q_i |R_sp,ji| (which is the spreading
+    # part itself for one source, and bounds it for several; a net spreading part near 0 from
+    # cancelling mutual terms is not a fair denominator). Measured: below 1e-9.
+    rng = np.random.default_rng(seed)
+    n = 48
+    for s, small in ((1, False), (1, True), (2, False), (3, True), (4, False), (5, False)):
+        a, b, x, y, c, d = _random_layout(rng, s, small)
+        t, k, h = _random_plates(rng, n)
+        q = rng.uniform(0.5, 50.0, s)
+        one_d = one_dimensional_base_resistance(t, k, a, b) + film_resistance(h, a, b)
+        R_dir = source_influence_matrix(a, b, t, k, h, x, y, c, d, method="direct")
+        R_grp = source_influence_matrix(a, b, t, k, h, x, y, c, d, method="grouped")
+        sp_abs = np.abs(R_dir - one_d[:, None, None])
+        tol = 1e-6 * sp_abs.max(axis=(1, 2))
+        assert np.all(np.abs(R_grp - R_dir).max(axis=(1, 2)) <= tol)
+        th_dir = source_temperature_rise(a, b, t, k, h, x, y, c, d, q, method="direct")
+        th_grp = source_temperature_rise(a, b, t, k, h, x, y, c, d, q, method="grouped")
+        assert np.all(np.abs(th_grp - th_dir) <= 1e-6 * (sp_abs @ q))
+        if s == 1:  # no cancellation: relative to the spreading part itself
+            spread = th_dir[:, 0] - q[0] * one_d
+            assert np.all(np.abs(th_grp[:, 0] - th_dir[:, 0]) <= 1e-6 * spread)
+
+
+def test_grouped_method_per_design_powers_and_mixed_layouts():
+    # powers per design (n, S), two plate sizes in one call, a group below the threshold of
+    # "auto" (direct) and invalid rows: all as the direct sum, NaN rows kept
+    rng = np.random.default_rng(8)
+    n = 120
+    a = np.where(np.arange(n) < 100, 0.2, 0.15)  # 100 designs on one plate, 20 on another
+    t, k, h = _random_plates(rng, n)
+    h[[5, 110]] = [0.0, -1.0]  # invalid fin side
+    t[7] = np.nan
+    x, y, c, d = [0.04, 0.1, 0.12], [0.03, 0.06, 0.02], [0.03, 0.02, 0.05], [0.02, 0.04, 0.03]
+    q = rng.uniform(1.0, 30.0, (n, 3))
+    ref = source_temperature_rise(a, 0.1, t, k, h, x, y, c, d, q, method="direct")
+    for method in ("auto", "grouped"):
+        got = source_temperature_rise(a, 0.1, t, k, h, x, y, c, d, q, method=method)
+        assert np.array_equal(np.isnan(got), np.isnan(ref))
+        bad = [5, 7, 110]
+        assert np.isnan(got[bad]).all() and np.isfinite(np.delete(got, bad, axis=0)).all()
+        np.testing.assert_allclose(got, ref, rtol=1e-7)  # all rises here >> spreading error
+    # uniform powers given as (n, S) rows take the contracted path: same numbers as (S,)
+    qq = np.broadcast_to(q[0], (n, 3)).copy()
+    np.testing.assert_allclose(
+        source_temperature_rise(a, 0.1, t, k, h, x, y, c, d, qq, method="grouped"),
+        source_temperature_rise(a, 0.1, t, k, h, x, y, c, d, q[0], method="grouped"), rtol=1e-12)
+
+
+def test_grouped_invalid_rows_and_sources_off_the_base_are_nan():
+    t = np.array([0.005, 0.0, 0.005, 0.005, np.nan])
+    h = np.array([1e3, 1e3, 0.0, np.inf, 1e3])
+    r = source_temperature_rise(0.1, 0.1, t, 200.0, h, [0.05], [0.05], [0.02], [0.02], [1.0],
+                                method="grouped")
+    assert np.isnan(r[[1, 2, 4]]).all() and np.isfinite(r[[0, 3]]).all()
+    # a footprint overhanging the base makes every row of a common layout NaN
+    off = source_temperature_rise(0.1, 0.1, np.full(40, 0.005), 200.0, 1e3, [0.095], [0.05],
+                                  [0.02], [0.02], [1.0], method="auto")
+    assert np.isnan(off).all()
+    with pytest.raises(ValueError, match="method: 'fast'"):
+        source_temperature_rise(0.1, 0.1, 0.005, 200.0, 1e3, [0.05], [0.05], [0.02], [0.02],
+                                [1.0], method="fast")
+
+
+def test_grouped_result_does_not_depend_on_the_group():
+    # modes with beta t_min > 18 are dropped per block of designs (|phi - 1| < 5e-16 there): a
+    # thick plate alone and among very thin ones gives the same rise to rounding
+    a, b, x, y, c, d = 0.2, 0.15, [0.05, 0.14], [0.05, 0.1], [0.02, 0.03], [0.02, 0.025]
+    t = np.r_[0.03, np.full(49, 5e-4)]
+    alone = source_temperature_rise(a, b, t[:1], 200.0, 800.0, x, y, c, d, [10.0, 20.0],
+                                    method="grouped")
+    among = source_temperature_rise(a, b, t, 200.0, 800.0, x, y, c, d, [10.0, 20.0],
+                                    method="grouped")
+    np.testing.assert_allclose(among[0], alone[0], rtol=1e-13)
+
+
+def test_centred_grouped_matches_direct_and_eccentric():
+    rng = np.random.default_rng(4)
+    n = 64
+    t, k, h = _random_plates(rng, n)
+    a, b, c, d = 0.12, 0.2, 0.03, 0.05
+    direct = spreading_resistance_centred(a, b, t, k, h, c, d, method="direct")
+    grouped = spreading_resistance_centred(a, b, t, k, h, c, d)  # auto: one group of 64
+    np.testing.assert_allclose(grouped, direct, rtol=1e-6)  # as the eccentric check above
+    ecc = source_influence_matrix(a, b, t, k, h, [np.nan], [np.nan], [c], [d],
+                                  method="grouped")[:, 0, 0]
+    ecc = ecc - one_dimensional_base_resistance(t, k, a, b) - film_resistance(h, a, b)
+    np.testing.assert_allclose(ecc, grouped, rtol=1e-9)  # one table; 1-D part subtracted
+
+
+def test_interpolation_error_of_phi_minus_one():
+    # the interpolation behind the grouped method, alone: phi - 1 through the table nodes vs
+    # phi - 1 from the spreading function, on 2001 points, for extreme t and Bi. Tolerance
+    # 1e-8 of |phi|, ten times the documented 1e-9 (measured 1e-10 here: panels of 1.28 in
+    # ln(beta), degree 14; 7e-10 on panels of the full width 1.5).
+    from models import spreading as sp
+
+    tab = sp._layout_table(0.3, 0.05, (0.15,), (0.025,), (0.006,), (0.001,), 8.0, 100, True)
+    beta = np.geomspace(tab.beta[0], tab.beta[-1], 2001)
+    p = sp._PANEL_DEGREE
+    u = np.log(beta)
+    ub = np.log(tab.beta)
+    pan = np.minimum(np.searchsorted(ub[::p], u, side="right") - 1, (ub.size - 1) // p - 1)
+    xi_nodes, w = sp._chebyshev_lobatto(p)
+    lo, hi = ub[pan * p], ub[pan * p + p]
+    lag = sp._lagrange_rows(2 * (u - lo) / (hi - lo) - 1, xi_nodes, w)
+    for t in (5e-4, 3e-3, 0.03):
+        for h in (1.0, 1e2, 1e4, 1e6, np.inf):
+            exact = spreading_function(beta, t, 200.0, h)
+            nodes = 1.0 + 2.0 * sp._half_phi_minus_one(tab.beta, np.array([t]),
+                                                       np.array([200.0 / h]))[0]
+            interp = 1.0 + np.sum(lag * (nodes[pan[:, None] * p + np.arange(p + 1)] - 1), axis=1)
+            assert np.all(np.abs(interp - exact) <= 1e-8 * exact)
