@@ -1,0 +1,82 @@
+"""Checkpoints: the whole search state pickled atomically, and loaded back for ``resume``.
+
+A checkpoint holds the problem (with the study) and the :class:`~optim.search.SearchState`
+(pymoo algorithm with its random generator, archive, convergence history, counters) in one
+pickle, so shared references survive. What a pickle cannot hold is dropped on save and
+re-attached on load: the problem's runner (process pool or Dask client; see
+``HeatSinkProblem.__getstate__``) and the records not yet written (drained before every save).
+
+The file is written to a temporary name in the same folder and then renamed over the old one
+(``os.replace``), so a crash while saving leaves the previous checkpoint intact.
+"""
+
+from __future__ import annotations
+
+import os
+import pickle
+import tempfile
+from pathlib import Path
+from typing import Any
+
+FORMAT = 1
+FILENAME = "checkpoint.pkl"
+
+
+class CheckpointError(RuntimeError):
+    """A checkpoint that is missing, unreadable or from an incompatible version."""
+
+
+def atomic_write_bytes(path: Path, data: bytes) -> None:
+    """Write ``data`` to ``path`` through a temporary file and a rename (atomic on POSIX)."""
+    path = Path(path)
+    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
+    try:
+        with os.fdopen(fd, "wb") as fh:
+            fh.write(data)
+            fh.flush()
+            os.fsync(fh.fileno())
+        os.chmod(tmp, 0o666 & ~_umask())
+        os.replace(tmp, path)
+    except BaseException:
+        if os.path.exists(tmp):
+            os.unlink(tmp)
+        raise
+
+
+def _umask() -> int:
+    mask = os.umask(0)
+    os.umask(mask)
+    return mask
+
+
+def save_checkpoint(folder: Path, problem: Any, state: Any,
+                    extra: dict[str, Any] | None = None) -> Path:
+    """Pickle ``problem`` and ``state`` into ``folder/checkpoint.pkl`` atomically."""
+    if problem.pending:
+        raise CheckpointError("records were not written before the checkpoint")
+    payload = {
+        "format": FORMAT,
+        "version": (extra or {}).get("version", "unknown"),
+        "problem": problem,
+        "state": state,
+        "extra": dict(extra or {}),
+    }
+    path = Path(folder) / FILENAME
+    atomic_write_bytes(path, pickle.dumps(payload, protocol=pickle.HIGHEST_PROTOCOL))
+    return path
+
+
+def load_checkpoint(folder: Path) -> dict[str, Any]:
+    """The checkpoint's payload: ``problem`` (without runner), ``state``, ``extra``, ``version``."""
+    path = Path(folder) / FILENAME
+    if not path.is_file():
+        raise CheckpointError(f"{folder}: no {FILENAME} here; expected a finfront run folder")
+    try:
+        with open(path, "rb") as fh:
+            payload = pickle.load(fh)
+    except Exception as exc:  # a truncated or foreign file
+        raise CheckpointError(f"{path}: cannot read the checkpoint ({exc})") from None
+    if not isinstance(payload, dict) or payload.get("format") != FORMAT:
+        raise CheckpointError(f"{path}: not a finfront checkpoint of format {FORMAT}")
+    payload["problem"].attach_runner(None)
+    return payload
