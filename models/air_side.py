@@ -13,8 +13,9 @@ from typing import NamedTuple
 
 import numpy as np
 
-from models.air import AirProperties
+from models.air import AirProperties, air_in_range
 from models.bypass import (
+    bypass_flags,
     bypass_pressure_coefficients,
     split_fixed_total_flow,
     total_flow_with_bypass,
@@ -156,6 +157,8 @@ def forced_air_side(
     tip_convects: bool,
     clearance_top: float = 0.0,
     clearance_side: float = 0.0,
+    T_air: float = 293.15,
+    p_air: float = 101325.0,
 ) -> AirSide:
     """Return the forced-convection air side of every design (see :class:`AirSide`).
 
@@ -173,7 +176,8 @@ def forced_air_side(
 
     Parameters: g geometry; d the design arrays (``Design.arrays()``); air inlet air
     properties; supply the air supply; system_impedance k (Pa s^2/m^6); tip_convects whether
-    fin tips see the air (no shroud); clearance_top, clearance_side bypass gaps (m).
+    fin tips see the air (no shroud); clearance_top, clearance_side bypass gaps (m); T_air,
+    p_air the inlet state (K, Pa) for the air-property range flag.
 
     Returns: :class:`AirSide` (SI arrays).
 
@@ -240,6 +244,19 @@ def forced_air_side(
     m_cp = rho * qc * cp
 
     nu_res = nusselt_channel(re, float(air.prandtl), ch.alpha, ch.l_over_dh)
+    air_ok = bool(air_in_range(T_air, p_air))
+    bypass_ok = True
+    if bypass:
+        bypass_ok = bypass_flags(
+            dp_sink,
+            d["base_width_m"],
+            d["fin_height_m"],
+            d["flow_length_m"],
+            clearance_top,
+            clearance_side,
+            rho,
+            float(air.kinematic_viscosity),
+        ).in_range
     h = nu_res.nusselt * float(air.conductivity) / ch.dh
     k_s = d["conductivity_W_per_mK"]
     t_r, t_t, H = d["fin_thickness_root_m"], d["fin_thickness_tip_m"], d["fin_height_m"]
@@ -265,7 +282,7 @@ def forced_air_side(
         heat_capacity_rate=m_cp,
         found=found,
         in_fan_data=in_fan,
-        in_range_flow=nu_res.in_range & found,
+        in_range_flow=nu_res.in_range & found & bypass_ok & air_ok,
     )
 
 
@@ -336,5 +353,5 @@ def stopped_air_side(
         heat_capacity_rate=np.full(n, np.inf),
         found=ok,
         in_fan_data=np.ones(n, dtype=bool),
-        in_range_flow=res.in_range & ok,
+        in_range_flow=res.in_range & ok & bool(air_in_range(T_ambient, p_ambient)),
     )

@@ -35,7 +35,7 @@ COLUMNS: dict[str, str] = {
     "flow_m3_per_s": "volumetric air flow delivered to the sink, bypass included (m3/s)",
     "channel_flow_m3_per_s": "volumetric air flow through the fin channels (m3/s)",
     "bypass_fraction": "share of the flow that passes around the fins (-)",
-    "approach_velocity_m_per_s": "air velocity upstream of the fins over the frontal area (m/s)",
+    "approach_velocity_m_per_s": "duct air velocity ahead of the sink, clearances included (m/s)",
     "channel_velocity_m_per_s": "mean air velocity in the fin channels (m/s)",
     "reynolds_number": "channel Reynolds number on the hydraulic diameter (-)",
     "pressure_drop_Pa": "static pressure drop across the sink: entrance + friction + exit (Pa)",
@@ -50,21 +50,24 @@ COLUMNS: dict[str, str] = {
     "ntu": "number of transfer units of the sink as a heat exchanger (-)",
     "sink_resistance_K_per_W": "isothermal base to inlet air, air heating included (K/W)",
     "base_resistance_K_per_W": "1-D conduction through the base thickness (K/W)",
-    "spreading_resistance_K_per_W": "spreading resistance of the hottest source (K/W)",
+    "spreading_resistance_K_per_W": (
+        "hottest source's rise per watt less the 1-D base and sink parts: its spreading "
+        "resistance, plus with several sources the heating by the others (K/W)"
+    ),
     "interface_resistance_K_per_W": "interface material of the hottest source (K/W)",
     "total_resistance_K_per_W": "junction of the hottest source to inlet air / total power (K/W)",
-    "air_temperature_rise_K": "outlet minus inlet air temperature (K)",
-    "outlet_temperature_K": "mean outlet air temperature (K)",
+    "air_temperature_rise_K": "mixed outlet (fins + bypass) minus inlet air temperature (K)",
+    "outlet_temperature_K": "mixed mean outlet air temperature, fins + bypass (K)",
     "base_temperature_K": "highest source-footprint temperature on the base (K)",
     "junction_temperature_K": "highest junction temperature (K)",
     "junction_margin_K": "smallest (limit - junction temperature) over the sources (K)",
     # validity
     "operating_point_found": "the fan and system curves meet (bool)",
     "in_fan_data": "operating point inside the fan curve's data (bool)",
-    "in_range_flow": "channel flow inside the correlations' published range (bool)",
+    "in_range_flow": "air, channel and bypass flow inside the correlations' ranges (bool)",
     "in_range_fin": "1-D fin theory valid (fin Biot number small) (bool)",
     "geometry_valid": "the profile can be made (bool)",
-    "valid": "all of the above (bool)",
+    "valid": "buildable, flow solved, sources on the base, numbers finite (bool)",
     "reason": "why a design is flagged, empty when valid (text)",
 }
 

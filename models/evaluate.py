@@ -31,6 +31,7 @@ from models.contract import Conditions, Design, HeatSource
 from models.fins import fin_one_dimensional_valid
 from models.geometry import GEOMETRY_REASONS, plate_fin_geometry
 from models.spreading import (
+    check_sources_on_base,
     heat_source_arrays,
     one_dimensional_base_resistance,
     source_temperature_rise,
@@ -39,9 +40,13 @@ from models.spreading import (
 _REASONS = (
     *GEOMETRY_REASONS,
     "no operating point: the fan and system curves do not meet",
+    "no flow solution: the bypass split or the fan-stopped balance did not converge",
+    "a heat source does not lie on the base",
     "degenerate design: the model's numbers overflow (sizes far outside any extrusion)",
 )
-_NO_OPERATING_POINT, _DEGENERATE = len(GEOMETRY_REASONS), len(GEOMETRY_REASONS) + 1
+_NO_OPERATING_POINT, _NO_FLOW_SOLUTION, _SOURCE_OFF_BASE, _DEGENERATE = (
+    len(GEOMETRY_REASONS) + i for i in range(4)
+)
 
 
 def upstream_heating_fractions(
@@ -52,11 +57,13 @@ def upstream_heating_fractions(
     Formula: heat from source j enters the air uniformly over its footprint, from
     x_j - c_j/2 to x_j + c_j/2; the share that has entered by position s is
     clip((s - x_j + c_j/2)/c_j, 0, 1); F[i, j] is its mean over footprint i (exact
-    piecewise-quadratic integral, evaluated on 64 points per footprint). F[i, i] = 1/2 and
-    F[i, j] + F[j, i] = 1 for footprints that do not overlap along the flow.
+    piecewise-linear share averaged by the trapezoid rule on 64 points per footprint: exact for
+    coinciding or separate footprints, within about 0.03 % otherwise). F[i, i] = 1/2 and
+    F[i, j] + F[j, i] = 1.
 
     Parameters: x footprint centres from the inlet edge (m, NaN = centred), c footprint
-    lengths along the flow (m), flow_length base length along the flow (m). Shapes (S,).
+    lengths along the flow (m), flow_length base length along the flow (m; ``evaluate`` passes
+    the population's mean, which a study fixes through its envelope). Shapes (S,).
 
     Returns: (S, S) array in [0, 1].
 
@@ -152,6 +159,7 @@ def evaluate(design: Design, conditions: Conditions) -> pd.DataFrame:
     powers = src["power"]
     q_total = float(powers.sum())
 
+    fan_mode = conditions.supply.mode == "fan"
     if conditions.supply.mode == "stopped":
         a: AirSide = stopped_air_side(
             g, d, air, T_in, p_in, q_total, float(conditions.surface_emissivity)
@@ -166,6 +174,8 @@ def evaluate(design: Design, conditions: Conditions) -> pd.DataFrame:
             tip_convects,
             float(conditions.clearance_top_m),
             float(conditions.clearance_side_m),
+            T_in,
+            p_in,
         )
 
     # --- base, sources, junctions ---------------------------------------------------------
@@ -185,15 +195,26 @@ def evaluate(design: Design, conditions: Conditions) -> pd.DataFrame:
     # the hottest source's rise per watt less the 1-D and sink parts: exact for one source,
     # for several it also holds the heating by the others
     r_spread = rise[rows, hottest] / np.maximum(powers[hottest], 1e-300) - r_base - a.r_sink
-    air_rise = q_total / a.heat_capacity_rate
+    # mixed outlet: the fin-channel air mixes with the bypass air (which picks up no heat)
+    air_rise = q_total / (a.heat_capacity_rate / np.maximum(a.channel_flow, 1e-300) * a.flow)
+    air_rise = np.where(a.flow > 0, air_rise, q_total / a.heat_capacity_rate)
+
+    duct_area = (W + 2.0 * conditions.clearance_side_m) * (
+        d["fin_height_m"] + conditions.clearance_top_m
+    )
 
     # --- flags ----------------------------------------------------------------------------
+    on_base = np.all(check_sources_on_base(L, W, src["x"], src["y"], src["c"], src["d"]), axis=-1)
     finite = np.isfinite(a.dp_system) & np.all(np.isfinite(t_j), axis=1)
-    valid = g.valid & a.found & finite
+    valid = g.valid & a.found & on_base & finite
     code = np.where(
         g.reason_code != 0,
         g.reason_code,
-        np.where(~a.found, _NO_OPERATING_POINT, np.where(~finite, _DEGENERATE, 0)),
+        np.select(
+            [~on_base, ~a.found, ~finite],
+            [_SOURCE_OFF_BASE, _NO_OPERATING_POINT if fan_mode else _NO_FLOW_SOLUTION, _DEGENERATE],
+            0,
+        ),
     )
     bad = ~valid
 
@@ -228,7 +249,7 @@ def evaluate(design: Design, conditions: Conditions) -> pd.DataFrame:
         "flow_m3_per_s": ok(a.flow),
         "channel_flow_m3_per_s": ok(a.channel_flow),
         "bypass_fraction": ok(1.0 - a.channel_flow / np.where(a.flow > 0, a.flow, 1.0)),
-        "approach_velocity_m_per_s": ok(a.flow / g.frontal_area_m2),
+        "approach_velocity_m_per_s": ok(a.flow / duct_area),
         "channel_velocity_m_per_s": ok(a.velocity),
         "reynolds_number": ok(a.reynolds),
         "pressure_drop_Pa": hot(a.dp_sink),

@@ -4,7 +4,8 @@ Convention used throughout finfront:
 
 * sigma is the free-flow AREA ratio, sigma = (flow area between the fins) / (frontal area of
   the duct just upstream/downstream); for a ducted sink with fins of thickness t at pitch p,
-  sigma = b / p = 1 - t/p. It is not a linear (diameter-like) ratio.
+  sigma = b / p = 1 - t/p for a periodic array (``models.geometry`` uses the whole array,
+  (N - 1) s / W, which counts the outer fins). It is not a linear (diameter-like) ratio.
 * Kc and Ke multiply the velocity head IN THE CHANNELS, rho V_channel^2 / 2.
 * They are Kays & London's irreversible coefficients: with them the static pressure drop
   over the sink is dp = (Kc + 4 f_app L/Dh + Ke) rho V^2 / 2 for constant density (the
