@@ -97,6 +97,16 @@ def _sources(sources: Sequence[HeatSource]) -> dict[str, np.ndarray]:
     return arr
 
 
+def _sources_on_base(L: np.ndarray, W: np.ndarray, src: dict[str, np.ndarray]) -> np.ndarray:
+    """Per design: every footprint on the base and no two overlapping (checked once per
+    distinct base size -- a study's envelope fixes it -- then broadcast)."""
+    pairs, inverse = np.unique(np.stack([L, W], axis=1), axis=0, return_inverse=True)
+    fits = check_sources_on_base(
+        pairs[:, 0], pairs[:, 1], src["x"], src["y"], src["c"], src["d"]
+    ).all(axis=-1)
+    return fits[inverse.ravel()]
+
+
 def evaluate(design: Design, conditions: Conditions) -> pd.DataFrame:
     """Return one row per design: flow, heat transfer, temperatures, mass, validity flags.
 
@@ -204,7 +214,7 @@ def evaluate(design: Design, conditions: Conditions) -> pd.DataFrame:
     )
 
     # --- flags ----------------------------------------------------------------------------
-    on_base = np.all(check_sources_on_base(L, W, src["x"], src["y"], src["c"], src["d"]), axis=-1)
+    on_base = _sources_on_base(L, W, src)
     finite = np.isfinite(a.dp_system) & np.all(np.isfinite(t_j), axis=1)
     valid = g.valid & a.found & on_base & finite
     code = np.where(
