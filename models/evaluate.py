@@ -27,6 +27,7 @@ import pandas as pd
 
 from models.air import air_properties
 from models.air_side import AirSide, forced_air_side, stopped_air_side
+from models.columns import COLUMNS, PER_SOURCE
 from models.contract import Conditions, Design, HeatSource
 from models.fins import fin_one_dimensional_valid
 from models.geometry import GEOMETRY_REASONS, plate_fin_geometry
@@ -294,3 +295,13 @@ def evaluate(design: Design, conditions: Conditions) -> pd.DataFrame:
         table[f"junction_margin_{s.name}_K"] = np.where(bad, -np.inf, margin[:, i])
         table[f"base_temperature_{s.name}_K"] = hot(t_base_src[:, i])
     return pd.DataFrame(table, copy=False)
+
+
+def _column_list() -> str:
+    lines = ["", "    Output columns (``models.columns``):", ""]
+    lines += [f"    - ``{name}``: {text}" for name, text in COLUMNS.items()]
+    lines += [f"    - ``{name}``: {text}" for name, text in PER_SOURCE.items()]
+    return "\n".join(lines) + "\n"
+
+
+evaluate.__doc__ = (evaluate.__doc__ or "") + _column_list()

@@ -346,3 +346,11 @@ def test_bypass_grows_with_clearance_and_the_fins_keep_the_energy_balance(check)
         "first law (energy balance of the mixed outlet stream)",
         rtol=1e-9,
     )
+
+
+def test_table_columns_are_exactly_the_documented_ones():
+    from models.columns import COLUMNS, PER_SOURCE
+
+    df = evaluate(design(3), conditions())
+    expected = list(COLUMNS) + [k.format(s="chip") for k in PER_SOURCE]
+    assert sorted(df.columns) == sorted(expected)
