@@ -197,16 +197,17 @@ def forced_air_side(
     found = np.ones(n, dtype=bool)
     in_fan = np.ones(n, dtype=bool)
     bypass = clearance_top > 0.0 or clearance_side > 0.0
+    clearance = (
+        d["base_width_m"],
+        d["fin_height_m"],
+        d["flow_length_m"],
+        clearance_top,
+        clearance_side,
+        rho,
+        float(air.kinematic_viscosity),
+    )
     if bypass:
-        coeff = bypass_pressure_coefficients(
-            d["base_width_m"],
-            d["fin_height_m"],
-            d["flow_length_m"],
-            clearance_top,
-            clearance_side,
-            rho,
-            float(air.kinematic_viscosity),
-        )
+        coeff = bypass_pressure_coefficients(*clearance)
     if supply.mode == "fan":
         if not supply.fans:
             raise ValueError("supply.fans: empty; expected at least one fan curve in fan mode")
@@ -247,16 +248,7 @@ def forced_air_side(
     air_ok = bool(air_in_range(T_air, p_air))
     bypass_ok = True
     if bypass:
-        bypass_ok = bypass_flags(
-            dp_sink,
-            d["base_width_m"],
-            d["fin_height_m"],
-            d["flow_length_m"],
-            clearance_top,
-            clearance_side,
-            rho,
-            float(air.kinematic_viscosity),
-        ).in_range
+        bypass_ok = bypass_flags(dp_sink, *clearance).in_range
     h = nu_res.nusselt * float(air.conductivity) / ch.dh
     k_s = d["conductivity_W_per_mK"]
     t_r, t_t, H = d["fin_thickness_root_m"], d["fin_thickness_tip_m"], d["fin_height_m"]
