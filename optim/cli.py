@@ -27,7 +27,8 @@ def _parser() -> argparse.ArgumentParser:
     p = argparse.ArgumentParser(
         prog="finfront",
         description="Size plate-fin heat sinks for fan-cooled electronics: run a study to a "
-                    "Pareto front, resume it, check a study file, summarise a run.",
+                    "Pareto front, resume it, check a study file, summarise a run, write its "
+                    "report, export a design for CAD.",
     )
     p.add_argument("--version", action="version", version=f"finfront {version()}")
     sub = p.add_subparsers(dest="command", metavar="COMMAND", required=True)
@@ -74,6 +75,22 @@ def _parser() -> argparse.ArgumentParser:
                        description="Print what a run found: budget used, Pareto front, "
                        "picked designs and what limits them.")
     m.add_argument("folder", metavar="FOLDER", help="run folder")
+
+    rp = sub.add_parser("report", help="write (or rewrite) a run's report.html",
+                        description="Write the self-contained design-review report "
+                        "report.html into a run folder.")
+    rp.add_argument("folder", metavar="FOLDER", help="run folder")
+
+    e = sub.add_parser("export", help="export one design of a run for CAD",
+                       description="Export a design of a run folder by its ID (the "
+                       "design_id column of pareto.csv, e.g. D012): a DXF of the profile "
+                       "with dimensions, a STEP solid (needs the cad extra) and a parameter "
+                       "sheet (JSON and CSV), re-evaluated so that they match the report.")
+    e.add_argument("folder", metavar="FOLDER", help="run folder")
+    e.add_argument("design", metavar="DESIGN_ID", help="design ID, e.g. D012 or 12")
+    e.add_argument("--out", metavar="DIR", help="output folder (default FOLDER/export)")
+    e.add_argument("--formats", metavar="LIST", default="dxf,step,json,csv",
+                   help="comma-separated subset of dxf,step,json,csv (default: all)")
     return p
 
 
@@ -111,11 +128,19 @@ def main(argv: list[str] | None = None) -> int:
             return _cmd_resume(args)
         if args.command == "check":
             return _cmd_check(args)
+        if args.command == "report":
+            return _cmd_report(args)
+        if args.command == "export":
+            return _cmd_export(args)
         return _cmd_summary(args)
     except StudyError as exc:
         return _error(str(exc).splitlines()[0] if str(exc) else "bad study file", EXIT_INPUT)
-    except (RunFolderError, CheckpointError, ValueError) as exc:
+    except (RunFolderError, CheckpointError, ValueError, FileNotFoundError) as exc:
         return _error(str(exc), EXIT_INPUT)
+    except KeyError as exc:
+        return _error(str(exc.args[0]) if exc.args else "unknown key", EXIT_INPUT)
+    except ImportError as exc:  # the optional cad extra for STEP
+        return _error(f"{exc} (or choose --formats dxf,json,csv)", EXIT_INPUT)
     except (RunError, ConnectionError, OSError) as exc:
         return _error(str(exc), EXIT_RUNTIME)
     except KeyboardInterrupt:
@@ -152,6 +177,25 @@ def _cmd_resume(args) -> int:
     result = resume_run(args.folder, progress="quiet" if args.quiet else "auto",
                         plots=not args.no_plots, **_overrides(args))
     return _finish(result)
+
+
+def _cmd_report(args) -> int:
+    from optim.report import write_report
+
+    print(write_report(Path(args.folder)))
+    return 0
+
+
+def _cmd_export(args) -> int:
+    from optim.export_run import export_from_run
+
+    formats = tuple(f.strip().lower() for f in args.formats.split(",") if f.strip())
+    paths = export_from_run(
+        Path(args.folder), args.design, Path(args.out) if args.out else None, formats=formats
+    )
+    for path in paths.values():
+        print(path)
+    return 0
 
 
 # ----------------------------------------------------------------------------- check
