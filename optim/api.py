@@ -33,7 +33,7 @@ from optim import search
 from optim.checkpoint import CheckpointError, load_checkpoint, save_checkpoint
 from optim.parallel import make_runner
 from optim.problem import HeatSinkProblem
-from optim.runfolder import RunFolder, RunFolderError, display, pareto_table
+from optim.runfolder import Records, RunFolder, RunFolderError, display, pareto_table
 from optim.study_types import Budget, Study
 
 BUDGET_KEYS = tuple(f.name for f in dataclasses.fields(Budget))
@@ -271,11 +271,11 @@ def _hms(s: float) -> str:
     return f"{s // 3600}:{s % 3600 // 60:02d}:{s % 60:02d}"
 
 
-def _flush(folder: RunFolder, state: search.SearchState, unsaved: list[pd.DataFrame]) -> None:
+def _flush(folder: RunFolder, state: search.SearchState, unsaved: list[Records]) -> None:
     """Write the records held since the last checkpoint (one part file, named by the last
     generation it holds) -- always just before the checkpoint itself."""
     if unsaved:
-        folder.write_part(state.generation, pd.concat(unsaved, ignore_index=True))
+        folder.write_part(state.generation, Records.concat(unsaved))
         unsaved.clear()
 
 
@@ -305,7 +305,7 @@ def _run(folder: RunFolder, problem: HeatSinkProblem, state: search.SearchState,
 
     interrupted = False
     reason = None
-    unsaved: list[pd.DataFrame] = []  # records since the last checkpoint
+    unsaved: list[Records] = []  # records since the last checkpoint (column arrays)
     last_outputs = time.monotonic()
     try:
         with _Interrupt(reporter) as intr:
@@ -320,7 +320,7 @@ def _run(folder: RunFolder, problem: HeatSinkProblem, state: search.SearchState,
                 if res is None:
                     reason = "nothing left to evaluate"
                     break
-                unsaved.append(res.evaluation.records)
+                unsaved.append(res.evaluation.batch)
                 state.elapsed_s = base_elapsed + time.perf_counter() - t0
                 done = state.evaluations if unit == "evaluations" else state.generation
                 reporter.update(done, line)

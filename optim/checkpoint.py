@@ -1,10 +1,11 @@
 """Checkpoints: the whole search state pickled atomically, and loaded back for ``resume``.
 
 A checkpoint holds the problem (with the study) and the :class:`~optim.search.SearchState`
-(pymoo algorithm with its random generator, archive, convergence history, counters) in one
-pickle, so shared references survive. What a pickle cannot hold is dropped on save and
-re-attached on load: the problem's runner (process pool or Dask client; see
-``HeatSinkProblem.__getstate__``) and the records not yet written (drained before every save).
+(the algorithm -- :class:`~optim.search.ArrayNSGA2` or a pymoo algorithm -- with its random
+generator, archive, convergence history, counters) in one pickle, so shared references
+survive. What a pickle cannot hold is dropped on save and re-attached on load: the problem's
+runner (process pool or Dask client; see ``HeatSinkProblem.__getstate__``) and the records
+not yet written (drained before every save).
 
 The file is written to a temporary name in the same folder and then renamed over the old one
 (``os.replace``), so a crash while saving leaves the previous checkpoint intact.
@@ -18,7 +19,7 @@ import tempfile
 from pathlib import Path
 from typing import Any
 
-FORMAT = 1
+FORMAT = 2  # 2: NSGA-II as optim.search.ArrayNSGA2, records as column arrays
 FILENAME = "checkpoint.pkl"
 
 
@@ -76,7 +77,12 @@ def load_checkpoint(folder: Path) -> dict[str, Any]:
             payload = pickle.load(fh)
     except Exception as exc:  # a truncated or foreign file
         raise CheckpointError(f"{path}: cannot read the checkpoint ({exc})") from None
-    if not isinstance(payload, dict) or payload.get("format") != FORMAT:
+    if not isinstance(payload, dict) or "format" not in payload:
         raise CheckpointError(f"{path}: not a finfront checkpoint of format {FORMAT}")
+    if payload["format"] != FORMAT:
+        raise CheckpointError(
+            f"{path}: checkpoint format {payload['format']} (finfront "
+            f"{payload.get('version', 'unknown')}); this finfront reads format {FORMAT} only: "
+            "finish the run with the finfront that started it, or start it again")
     payload["problem"].attach_runner(None)
     return payload
