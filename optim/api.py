@@ -363,6 +363,17 @@ def _run(folder: RunFolder, problem: HeatSinkProblem, state: search.SearchState,
 
         for name, err in make_plots(folder, problem, state, pareto, conv).items():
             reporter.message(f"warning: plot '{name}' failed: {err}")
+    if not interrupted:
+        from optim.report import write_report
+
+        try:
+            reporter.message(f"report: {write_report(folder.path)}", console=False)
+        except Exception as exc:  # the run's results stand; the report can be rewritten
+            folder.log("report failed:\n" + traceback.format_exc())
+            reporter.message(
+                f"warning: report.html failed ({exc.__class__.__name__}: {exc}); "
+                f"retry with: finfront report {folder.path}"
+            )
     return RunResult(
         folder=folder.path, pareto=pareto, convergence=conv, method=state.method,
         generations=state.generation, evaluations=state.evaluations, stop_reason=reason,

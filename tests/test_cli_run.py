@@ -40,6 +40,7 @@ def run_folder(tmp_path_factory) -> Path:
 
 def test_run_folder_holds_every_output(run_folder):
     for name in ("study.yaml", "pareto.csv", "evaluated.csv.gz", "convergence.csv", "log.txt",
+                 "report.html",
                  "checkpoint.pkl"):
         assert (run_folder / name).is_file(), name
     for fig in ("pareto", "convergence", "fan_system", "fin_profile", "design_space"):
