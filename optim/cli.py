@@ -116,6 +116,9 @@ def _study_error():
 def main(argv: list[str] | None = None) -> int:
     """The ``finfront`` entry point; returns the exit code."""
     args = _parser().parse_args(argv)
+    from optim.runtime import tune_allocator
+
+    tune_allocator()
     from optim.api import RunError
     from optim.checkpoint import CheckpointError
     from optim.runfolder import RunFolderError

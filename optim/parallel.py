@@ -56,6 +56,9 @@ def _join(parts: list[list[pd.DataFrame]], n_scenarios: int) -> list[pd.DataFram
 def _ignore_sigint() -> None:
     # Ctrl-C is for the main process, which checkpoints and stops the workers itself.
     signal.signal(signal.SIGINT, signal.SIG_IGN)
+    from optim.runtime import tune_allocator
+
+    tune_allocator()
 
 
 class ProcessRunner:
