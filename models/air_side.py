@@ -9,6 +9,7 @@ the base, the sources and the junctions.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from functools import lru_cache
 from typing import NamedTuple
 
 import numpy as np
@@ -21,8 +22,9 @@ from models.bypass import (
     total_flow_with_bypass,
 )
 from models.channel import FrictionTerms, friction_terms, nusselt_channel, poiseuille_number
-from models.contract import AirSupply
+from models.contract import AirSupply, FanCurve
 from models.fan import (
+    FanTable,
     fan_model,
     fan_pressure_indexed,
     fan_table,
@@ -115,6 +117,12 @@ def channel_hydraulics(
         minor_per_flow2=k_minor * 0.5 * rho / (area * area),
         friction_per_flow=2.0 * rho * nu * l_over_dh / (dh * area),
     )
+
+
+@lru_cache(maxsize=64)
+def _fan_table(fans: tuple[FanCurve, ...], rho: float) -> FanTable:
+    """The candidate fans at this air density, built once per (fans, density)."""
+    return fan_table([fan_model(c, rho) for c in fans])
 
 
 def _fan_with_bypass(table, idx, ch, coeff, k_sys):
@@ -211,7 +219,10 @@ def forced_air_side(
     if supply.mode == "fan":
         if not supply.fans:
             raise ValueError("supply.fans: empty; expected at least one fan curve in fan mode")
-        table = fan_table([fan_model(c, rho) for c in supply.fans])
+        try:
+            table = _fan_table(tuple(supply.fans), rho)
+        except TypeError:  # curve points given as lists (unhashable): build without the cache
+            table = fan_table([fan_model(c, rho) for c in supply.fans])
         if bypass:
             q, qc, found = _fan_with_bypass(table, d["fan_index"], ch, coeff, k_sys)
         else:
