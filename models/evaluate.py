@@ -207,8 +207,9 @@ def evaluate(design: Design, conditions: Conditions) -> pd.DataFrame:
     # for several it also holds the heating by the others
     r_spread = rise[rows, hottest] / np.maximum(powers[hottest], 1e-300) - r_base - a.r_sink
     # mixed outlet: the fin-channel air mixes with the bypass air (which picks up no heat)
-    air_rise = q_total / (a.heat_capacity_rate / np.maximum(a.channel_flow, 1e-300) * a.flow)
-    air_rise = np.where(a.flow > 0, air_rise, q_total / a.heat_capacity_rate)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        mixed = q_total * a.channel_flow / (a.heat_capacity_rate * a.flow)
+    air_rise = np.where(a.flow > 0, mixed, q_total / a.heat_capacity_rate)
 
     duct_area = (W + 2.0 * conditions.clearance_side_m) * (
         d["fin_height_m"] + conditions.clearance_top_m
