@@ -38,6 +38,7 @@ from optim.report_format import (  # noqa: E402
     PALETTE,
     axis_title,
     colour_map,
+    fan_set_words,
     limiting_text,
     pick_title,
     unit_of,
@@ -412,11 +413,6 @@ def _take(design, i: int):
     return type(design)(**{k: v[i : i + 1] for k, v in arrays.items()})
 
 
-def _fan_set_words(curve) -> str:
-    n = int(curve.count)
-    if n == 1:
-        return "1 fan"
-    return f"{n} fans in {curve.arrangement}"
 
 
 @_styled
@@ -460,7 +456,7 @@ def plot_fan_system(folder: RunFolder, problem: HeatSinkProblem, state: SearchSt
         h, = ax.plot(f.flow * to_h, f.pressure, "-", lw=3, color=ink, zorder=2)
         fan_names[fi] = name
         handles.append(h)
-        labels.append(f"fan curve: {name}\n{_fan_set_words(curve)}, air at "
+        labels.append(f"fan curve: {name}\n{fan_set_words(curve)}, air at "
                       f"{c.density:.3f} kg/m³")
         h, = ax.plot(f.data_flow * to_h, f.data_pressure, "o", ms=6, mfc="white", mec=ink,
                      mew=1.6, zorder=2)

@@ -23,6 +23,7 @@ from models.air import air_density
 from models.contract import AirSupply, Conditions, Design
 from models.evaluate import evaluate
 from models.fan import fan_model, fan_pressure
+from optim.report_format import fan_set_words
 from optim.study_types import Study
 
 SYSTEM_POINTS = 48  # flows on the system curve
@@ -66,7 +67,7 @@ def fan_set(cond: Conditions, fan_index: int, names: tuple[str, ...]) -> FanSet 
     model = fan_model(curve, rho)
     q = np.linspace(0.0, model.free_delivery_m3_per_s, 120)
     name = names[fan_index] if fan_index < len(names) else curve.name
-    set_words = f"{curve.count} × in {curve.arrangement}" if curve.count > 1 else "one fan"
+    set_words = fan_set_words(curve)
     return FanSet(
         label=f"fan '{name}' ({set_words}) at {rho:.3f} kg/m³",
         flow=q, pressure=fan_pressure(model, q),

@@ -180,3 +180,11 @@ def colour_map(labels) -> dict[str, str]:
 
 def pick_title(label: str) -> str:
     return PICK_NAMES.get(label, label)
+
+
+def fan_set_words(curve) -> str:
+    """Plain words for a fan set: '1 fan', '2 fans in parallel', '2 fans in series'."""
+    n = int(curve.count)
+    if n == 1:
+        return "1 fan"
+    return f"{n} fans in {curve.arrangement}"
