@@ -13,11 +13,11 @@ The file is written to a temporary name in the same folder and then renamed over
 
 from __future__ import annotations
 
-import os
 import pickle
-import tempfile
 from pathlib import Path
 from typing import Any
+
+from optim.atomic import atomic_write_bytes
 
 FORMAT = 2  # 2: NSGA-II as optim.search.ArrayNSGA2, records as column arrays
 FILENAME = "checkpoint.pkl"
@@ -27,27 +27,6 @@ class CheckpointError(RuntimeError):
     """A checkpoint that is missing, unreadable or from an incompatible version."""
 
 
-def atomic_write_bytes(path: Path, data: bytes) -> None:
-    """Write ``data`` to ``path`` through a temporary file and a rename (atomic on POSIX)."""
-    path = Path(path)
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
-    try:
-        with os.fdopen(fd, "wb") as fh:
-            fh.write(data)
-            fh.flush()
-            os.fsync(fh.fileno())
-        os.chmod(tmp, 0o666 & ~_umask())
-        os.replace(tmp, path)
-    except BaseException:
-        if os.path.exists(tmp):
-            os.unlink(tmp)
-        raise
-
-
-def _umask() -> int:
-    mask = os.umask(0)
-    os.umask(mask)
-    return mask
 
 
 def save_checkpoint(folder: Path, problem: Any, state: Any,

@@ -21,10 +21,9 @@ cross-sections are inline SVG), so it opens with no network. Its sections, in or
 
 from __future__ import annotations
 
-import os
-import tempfile
 from pathlib import Path
 
+from optim.atomic import atomic_write_text
 from optim.report_assets import CSS, HEAD_JS, PARETO_CLICK_JS, SORT_JS
 from optim.report_charts import convergence_figure, pareto_figure, to_div
 from optim.report_data import RunData, load_run
@@ -65,18 +64,7 @@ def write_report(run_folder: Path) -> Path:
     data = load_run(folder)
     html = render(data)
     path = folder / REPORT_NAME
-    fd, tmp = tempfile.mkstemp(prefix=f".{REPORT_NAME}.", suffix=".tmp", dir=folder)
-    try:
-        with os.fdopen(fd, "w", encoding="utf-8") as fh:
-            fh.write(html)
-        mask = os.umask(0)
-        os.umask(mask)
-        os.chmod(tmp, 0o666 & ~mask)
-        os.replace(tmp, path)
-    except BaseException:
-        Path(tmp).unlink(missing_ok=True)
-        raise
-    return path
+    return atomic_write_text(path, html)
 
 
 def front_section(d: RunData) -> str:

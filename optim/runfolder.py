@@ -21,10 +21,8 @@ with the model's whole table in SI so that nothing is lost.
 from __future__ import annotations
 
 import datetime as _dt
-import os
 import pickle
 import re
-import tempfile
 from pathlib import Path
 from typing import Any
 
@@ -33,7 +31,7 @@ import pandas as pd
 import yaml
 from numpy.typing import ArrayLike
 
-from optim.checkpoint import _umask, atomic_write_bytes
+from optim.atomic import atomic_write, atomic_write_bytes, atomic_write_text
 from optim.study_types import Study
 
 CFM_PER_M3S = 2118.880003  # 1 m3/s in cubic feet per minute (0.3048^3 m3 per ft3, 60 s)
@@ -54,24 +52,10 @@ KEY_OUTPUTS = (
 
 
 # ----------------------------------------------------------------------------- atomic writes
-def atomic_write_text(path: Path, text: str) -> None:
-    atomic_write_bytes(Path(path), text.encode("utf-8"))
-
-
 def atomic_write_csv(df: pd.DataFrame, path: Path,
                      compression: str | dict | None = None) -> None:
     """Write a CSV (optionally gzip) to a temporary file, then rename it over ``path``."""
-    path = Path(path)
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
-    os.close(fd)
-    try:
-        df.to_csv(tmp, index=False, compression=compression)
-        os.chmod(tmp, 0o666 & ~_umask())
-        os.replace(tmp, path)
-    except BaseException:
-        if os.path.exists(tmp):
-            os.unlink(tmp)
-        raise
+    atomic_write(path, lambda tmp: df.to_csv(tmp, index=False, compression=compression))
 
 
 # ----------------------------------------------------------------------------- record batches
