@@ -51,6 +51,17 @@ KEY_OUTPUTS = (
 )
 
 
+# ----------------------------------------------------------------------------- tables
+TEXT_COLUMNS = {"reason": str, "limiting_constraint": str, "worst_scenario": str,
+                "material": str, "fan": str, "design_id": str}
+
+
+def read_table(path: Path, **kw: Any) -> pd.DataFrame:
+    """Read a run-folder CSV (optionally gzip) with its text columns kept as text."""
+    return pd.read_csv(path, dtype=TEXT_COLUMNS, keep_default_na=False,
+                       na_values=["", "nan", "NaN"], low_memory=False, **kw)
+
+
 # ----------------------------------------------------------------------------- atomic writes
 def atomic_write_csv(df: pd.DataFrame, path: Path,
                      compression: str | dict | None = None) -> None:
@@ -332,7 +343,7 @@ class RunFolder:
         """Gather ``evaluated.csv.gz`` (earlier merges + parts) up to a generation; return rows."""
         frames = []
         if self.evaluated_file.exists():
-            old = pd.read_csv(self.evaluated_file)
+            old = read_table(self.evaluated_file)
             if "generation" in old:
                 old = old[old["generation"] <= up_to_generation]
             frames.append(old)
@@ -354,7 +365,7 @@ class RunFolder:
     def read_evaluated(self) -> pd.DataFrame:
         frames = []
         if self.evaluated_file.exists():
-            frames.append(pd.read_csv(self.evaluated_file))
+            frames.append(read_table(self.evaluated_file))
         frames += self._read_parts(self._parts())
         return pd.concat(frames, ignore_index=True) if frames else pd.DataFrame()
 
