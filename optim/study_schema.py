@@ -3,7 +3,8 @@
 Quantities are converted to SI here, field by field (:mod:`optim.units`); each field's
 ``description`` is the expectation printed when the key is missing or its value is of the
 wrong type. Checks that need several sections at once (sources on the base, bounds the extruder
-can meet, column names) live in :mod:`optim.study`. ``docs/study-file.md`` documents every key.
+can meet, column names) live in the ``optim.study_*`` modules that :mod:`optim.study` calls.
+``docs/study-file.md`` documents every key.
 """
 
 from __future__ import annotations

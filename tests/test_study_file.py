@@ -570,7 +570,8 @@ def test_shipped_studies_load_and_round_trip(name):
 def test_shipped_studies_content():
     q = load_study(ROOT / "studies" / "quickstart.yaml")
     assert len(q.scenarios[0].conditions.sources) >= 2
-    assert q.budget.population * q.budget.generations <= 2000
+    # the README promises under a minute on two cores: ~1e4 designs take ~10 s end to end
+    assert q.budget.population * q.budget.generations <= 10_000
     assert {v.name for v in q.variables} >= {"material", "fan"}
     o = load_study(ROOT / "studies" / "overnight.yaml")
     assert len(o.objectives) == 3 and len(o.fan_names) >= 3
