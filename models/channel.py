@@ -268,11 +268,15 @@ def poiseuille_number(re: FloatArray, terms: FrictionTerms) -> FloatArray:
     """
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
         # laminar: sqrt((3.44/sqrt(x+))^2 + fRe^2) with 1/x+ = Re / (L/Dh), safe at Re = 0
-        po_lam = np.sqrt(terms.short_coeff_sq * re + terms.fre_fd * terms.fre_fd)
-        po_turb = fanning_turbulent_smooth(re) * re
-        gam = _transition_weight(re)
-        po_tr = ((1.0 - gam) * terms.g_lo + gam * terms.g_hi) / re
-    return np.where(re <= RE_LAMINAR_MAX, po_lam, np.where(re >= RE_TURBULENT_MIN, po_turb, po_tr))
+        po = np.sqrt(terms.short_coeff_sq * re + terms.fre_fd * terms.fre_fd)
+        re_max = np.fmax.reduce(np.ravel(re), initial=0.0)  # NaN-blind maximum
+        if re_max > RE_LAMINAR_MAX:  # the other regimes only where some element is in them
+            gam = _transition_weight(re)
+            po_tr = ((1.0 - gam) * terms.g_lo + gam * terms.g_hi) / re
+            po = np.where(re <= RE_LAMINAR_MAX, po, po_tr)
+            if re_max >= RE_TURBULENT_MIN:
+                po = np.where(re >= RE_TURBULENT_MIN, fanning_turbulent_smooth(re) * re, po)
+    return po
 
 
 def _poiseuille_channel(re: FloatArray, alpha: ArrayLike, l_over_dh: FloatArray) -> FloatArray:

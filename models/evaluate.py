@@ -230,11 +230,13 @@ def evaluate(design: Design, conditions: Conditions) -> pd.DataFrame:
     )
     bad = ~valid
 
+    any_bad = bool(bad.any())
+
     def hot(x: np.ndarray) -> np.ndarray:
-        return np.where(bad, np.inf, x)
+        return np.where(bad, np.inf, x) if any_bad else x
 
     def ok(x: np.ndarray) -> np.ndarray:
-        return np.where(bad, 0.0, x)
+        return np.where(bad, 0.0, x) if any_bad else x
 
     table = {
         "fin_count": d["fin_count"],
@@ -282,7 +284,7 @@ def evaluate(design: Design, conditions: Conditions) -> pd.DataFrame:
         "outlet_temperature_K": hot(T_in + air_rise),
         "base_temperature_K": hot(t_base_src.max(axis=1)),
         "junction_temperature_K": hot(t_j.max(axis=1)),
-        "junction_margin_K": np.where(bad, -np.inf, margin.min(axis=1)),
+        "junction_margin_K": -hot(-margin.min(axis=1)),
         "operating_point_found": a.found,
         "in_fan_data": a.in_fan_data,
         "in_range_flow": a.in_range_flow,
@@ -293,7 +295,7 @@ def evaluate(design: Design, conditions: Conditions) -> pd.DataFrame:
     }
     for i, s in enumerate(conditions.sources):
         table[f"junction_temperature_{s.name}_K"] = hot(t_j[:, i])
-        table[f"junction_margin_{s.name}_K"] = np.where(bad, -np.inf, margin[:, i])
+        table[f"junction_margin_{s.name}_K"] = -hot(-margin[:, i])
         table[f"base_temperature_{s.name}_K"] = hot(t_base_src[:, i])
     return pd.DataFrame(table, copy=False)
 

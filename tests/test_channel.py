@@ -249,3 +249,18 @@ def test_pressure_drop_invalid_inputs():
     )
     assert np.isnan(p.total).all() and not p.in_range.any()
     assert np.all(p.regime == INVALID)
+
+
+def test_poiseuille_number_elements_are_independent_of_their_neighbours():
+    # a NaN or laminar neighbour must not change a turbulent element's value (the regime
+    # branches are skipped only when no element needs them)
+    from models.channel import friction_terms, poiseuille_number
+
+    re = np.array([np.nan, 500.0, 5000.0, 20000.0])
+    terms = friction_terms(np.full(4, 0.1), np.full(4, 20.0))
+    together = poiseuille_number(re, terms)
+    alone = [
+        poiseuille_number(re[i : i + 1], friction_terms(np.array([0.1]), np.array([20.0])))[0]
+        for i in range(4)
+    ]
+    np.testing.assert_array_equal(together, np.array(alone))
