@@ -101,6 +101,11 @@ def _sources(sources: Sequence[HeatSource]) -> dict[str, np.ndarray]:
 def _sources_on_base(L: np.ndarray, W: np.ndarray, src: dict[str, np.ndarray]) -> np.ndarray:
     """Per design: every footprint on the base and no two overlapping (checked once per
     distinct base size -- a study's envelope fixes it -- then broadcast)."""
+    if L.min() == L.max() and W.min() == W.max():  # the usual case: one envelope
+        fits = check_sources_on_base(L[:1], W[:1], src["x"], src["y"], src["c"], src["d"]).all(
+            axis=-1
+        )
+        return np.broadcast_to(fits, L.shape)
     pairs, inverse = np.unique(np.stack([L, W], axis=1), axis=0, return_inverse=True)
     fits = check_sources_on_base(
         pairs[:, 0], pairs[:, 1], src["x"], src["y"], src["c"], src["d"]
