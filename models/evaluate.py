@@ -216,8 +216,9 @@ def evaluate(design: Design, conditions: Conditions) -> pd.DataFrame:
         mixed = q_total * a.channel_flow / (a.heat_capacity_rate * a.flow)
     air_rise = np.where(a.flow > 0, mixed, q_total / a.heat_capacity_rate)
 
-    duct_area = (W + 2.0 * conditions.clearance_side_m) * (
-        d["fin_height_m"] + conditions.clearance_top_m
+    duct_area = np.maximum(  # floored: impossible rows (H <= 0) stay finite, then flagged
+        (W + 2.0 * conditions.clearance_side_m) * (d["fin_height_m"] + conditions.clearance_top_m),
+        1e-12,
     )
 
     # --- flags ----------------------------------------------------------------------------
