@@ -39,32 +39,64 @@ _ABS_T = re.compile(r"^(?:(?P<scen>[^:]+):)?(?P<base>(outlet|base|junction)_temp
 
 # (SI column, shown column, factor) for the readable front block of pareto.csv
 _LENGTH_COLS = (
-    "fin_thickness_root_m", "fin_thickness_tip_m", "fin_height_m", "base_thickness_m",
-    "base_width_m", "flow_length_m", "pitch_m", "gap_root_m", "gap_tip_m", "overall_height_m",
+    "fin_thickness_root_m",
+    "fin_thickness_tip_m",
+    "fin_height_m",
+    "base_thickness_m",
+    "base_width_m",
+    "flow_length_m",
+    "pitch_m",
+    "gap_root_m",
+    "gap_tip_m",
+    "overall_height_m",
 )
 KEY_OUTPUTS = (
-    "mass_kg", "junction_temperature_K", "base_temperature_K", "outlet_temperature_K",
-    "junction_margin_K", "total_resistance_K_per_W", "sink_resistance_K_per_W",
-    "pressure_drop_Pa", "system_pressure_Pa", "flow_m3_per_s", "approach_velocity_m_per_s",
-    "channel_velocity_m_per_s", "reynolds_number", "fin_efficiency", "h_W_per_m2K",
-    "fin_height_to_gap_ratio", "fan_air_power_W", "total_area_m2",
+    "mass_kg",
+    "junction_temperature_K",
+    "base_temperature_K",
+    "outlet_temperature_K",
+    "junction_margin_K",
+    "total_resistance_K_per_W",
+    "sink_resistance_K_per_W",
+    "pressure_drop_Pa",
+    "system_pressure_Pa",
+    "flow_m3_per_s",
+    "approach_velocity_m_per_s",
+    "channel_velocity_m_per_s",
+    "reynolds_number",
+    "fin_efficiency",
+    "h_W_per_m2K",
+    "fin_height_to_gap_ratio",
+    "fan_air_power_W",
+    "total_area_m2",
 )
 
 
 # ----------------------------------------------------------------------------- tables
-TEXT_COLUMNS = {"reason": str, "limiting_constraint": str, "worst_scenario": str,
-                "material": str, "fan": str, "design_id": str}
+TEXT_COLUMNS = {
+    "reason": str,
+    "limiting_constraint": str,
+    "worst_scenario": str,
+    "material": str,
+    "fan": str,
+    "design_id": str,
+}
 
 
 def read_table(path: Path, **kw: Any) -> pd.DataFrame:
     """Read a run-folder CSV (optionally gzip) with its text columns kept as text."""
-    return pd.read_csv(path, dtype=TEXT_COLUMNS, keep_default_na=False,
-                       na_values=["", "nan", "NaN"], low_memory=False, **kw)
+    return pd.read_csv(
+        path,
+        dtype=TEXT_COLUMNS,
+        keep_default_na=False,
+        na_values=["", "nan", "NaN"],
+        low_memory=False,
+        **kw,
+    )
 
 
 # ----------------------------------------------------------------------------- atomic writes
-def atomic_write_csv(df: pd.DataFrame, path: Path,
-                     compression: str | dict | None = None) -> None:
+def atomic_write_csv(df: pd.DataFrame, path: Path, compression: str | dict | None = None) -> None:
     """Write a CSV (optionally gzip) to a temporary file, then rename it over ``path``."""
     atomic_write(path, lambda tmp: df.to_csv(tmp, index=False, compression=compression))
 
@@ -137,7 +169,8 @@ class Records:
                     break
                 cols[k] = np.concatenate(parts)
             elif isinstance(first, pd.api.extensions.ExtensionArray) and all(
-                    type(p) is type(first) and p.dtype == first.dtype for p in parts):
+                type(p) is type(first) and p.dtype == first.dtype for p in parts
+            ):
                 cols[k] = type(first)._concat_same_type(parts)  # the ExtensionArray interface
             else:
                 same = False
@@ -163,9 +196,16 @@ def display(column: str) -> tuple[str, float, float]:
         return f"{m.group('base').replace('_', ' ')} (degC)", 1.0, -273.15
     pretty = name.replace("_", " ")
     for suffix, unit, factor in (
-        ("_m3_per_s", "m^3/h", 3600.0), ("_K_per_W", "K/W", 1.0), ("_m_per_s", "m/s", 1.0),
-        ("_W_per_m2K", "W/m^2K", 1.0), ("_m2", "cm^2", 1e4), ("_kg", "g", 1e3),
-        ("_Pa", "Pa", 1.0), ("_W", "W", 1.0), ("_K", "K", 1.0), ("_m", "mm", 1e3),
+        ("_m3_per_s", "m^3/h", 3600.0),
+        ("_K_per_W", "K/W", 1.0),
+        ("_m_per_s", "m/s", 1.0),
+        ("_W_per_m2K", "W/m^2K", 1.0),
+        ("_m2", "cm^2", 1e4),
+        ("_kg", "g", 1e3),
+        ("_Pa", "Pa", 1.0),
+        ("_W", "W", 1.0),
+        ("_K", "K", 1.0),
+        ("_m", "mm", 1e3),
     ):
         if name.endswith(suffix):
             base = name[: -len(suffix)].replace("_", " ")
@@ -181,11 +221,51 @@ def shown(values: ArrayLike, column: str) -> np.ndarray:
 
 
 # ----------------------------------------------------------------------------- pareto table
+PARETO_MAX = 200  # designs in pareto.csv; the whole archive stays in evaluated.csv.gz
+
+
+def spread_subset(F: np.ndarray, k: int) -> np.ndarray:
+    """Indices of ``k`` rows of ``F`` (objectives, to be minimised) spread evenly over the front.
+
+    Greedy farthest-point selection in objective space scaled to [0, 1] per objective: the best
+    design of each objective first, then repeatedly the design farthest from all chosen ones.
+    Deterministic (ties go to the lower index). Returns all rows, in order, when k >= len(F).
+    """
+    n = len(F)
+    if n <= k:
+        return np.arange(n)
+    span = F.max(axis=0) - F.min(axis=0)
+    Z = (F - F.min(axis=0)) / np.where(span > 0, span, 1.0)
+    chosen = list(dict.fromkeys(int(i) for i in np.argmin(Z, axis=0)))[:k]
+    dist = np.full(n, np.inf)
+    for i in chosen:
+        dist = np.minimum(dist, np.sum((Z - Z[i]) ** 2, axis=1))
+    while len(chosen) < k:
+        i = int(np.argmax(dist))
+        chosen.append(i)
+        dist = np.minimum(dist, np.sum((Z - Z[i]) ** 2, axis=1))
+    return np.sort(np.array(chosen))
+
+
 def pareto_table(records: pd.DataFrame | None, study: Study) -> pd.DataFrame:
-    """The columns of ``pareto.csv`` from archive records (sorted by the first objective)."""
+    """The columns of ``pareto.csv`` from archive records (sorted by the first objective).
+
+    A front larger than ``PARETO_MAX`` designs (continuous variables make long, dense fronts)
+    is thinned to that many, spread evenly along it (:func:`spread_subset`).
+    """
     if records is None or len(records) == 0:
         records = pd.DataFrame(columns=["eval_id"])
-    rec = records.copy()
+    rec = records
+    cols = [o.column for o in study.objectives]
+    if len(rec) > PARETO_MAX and all(c in rec for c in cols):
+        F = np.column_stack(
+            [
+                rec[o.column].to_numpy(dtype=float) * (1.0 if o.sense == "min" else -1.0)
+                for o in study.objectives
+            ]
+        )
+        rec = rec.iloc[spread_subset(F, PARETO_MAX)]
+    rec = rec.copy()
     obj0 = study.objectives[0]
     if obj0.column in rec and len(rec):
         rec = rec.sort_values(obj0.column, ascending=obj0.sense == "min", kind="stable")
@@ -356,8 +436,9 @@ class RunFolder:
         if "eval_id" in df:
             df = df.drop_duplicates("eval_id").sort_values("eval_id", kind="stable")
         # gzip level 1: a tenth larger than level 9, and the write takes half the time
-        atomic_write_csv(df, self.evaluated_file,
-                         compression={"method": "gzip", "compresslevel": 1})
+        atomic_write_csv(
+            df, self.evaluated_file, compression={"method": "gzip", "compresslevel": 1}
+        )
         for p in parts:
             p.unlink()
         return len(df)
