@@ -80,7 +80,13 @@ class ChannelHydraulics:
         finite at Q = 0: the friction part is 2 rho nu (L/Dh) (f Re) V / Dh.
         """
         po = poiseuille_number(q * self.re_per_flow, self.terms)
-        return q * (self.minor_per_flow2 * q + self.friction_per_flow * po)
+        if po.ndim == 0:
+            return q * (self.minor_per_flow2 * q + self.friction_per_flow * po)
+        po *= self.friction_per_flow  # in place: called on every pass of the root find
+        dp = self.minor_per_flow2 * q
+        dp += po
+        dp *= q
+        return dp
 
 
 def channel_hydraulics(

@@ -40,6 +40,7 @@ from models.channel_heat import (
     nusselt_turbulent_gnielinski,
 )
 from models.minor_losses import entrance_loss_coefficient, exit_loss_coefficient
+from models.roots import _where  # exact branch-free np.where for float64
 
 FloatArray = NDArray[np.float64]
 IntArray = NDArray[np.int8]
@@ -266,11 +267,23 @@ def poiseuille_number(re: FloatArray, terms: FrictionTerms) -> FloatArray:
 
     Example: ``poiseuille_number(np.array([1000.0]), friction_terms(0.0, 1e6))`` is [24.0].
     """
+    # In place where possible: this runs on every pass of the fan operating-point search.
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
         # laminar: sqrt((3.44/sqrt(x+))^2 + fRe^2) with 1/x+ = Re / (L/Dh), safe at Re = 0
         po = np.sqrt(terms.short_coeff_sq * re + terms.fre_fd * terms.fre_fd)
         re_max = np.fmax.reduce(np.ravel(re), initial=0.0)  # NaN-blind maximum
-        if re_max > RE_LAMINAR_MAX:  # the other regimes only where some element is in them
+        if re_max > RE_LAMINAR_MAX and po.ndim:  # the other regimes only where some element is
+            gam = _transition_weight(re)
+            po_tr = np.subtract(1.0, gam)
+            po_tr *= terms.g_lo
+            gam *= terms.g_hi
+            po_tr += gam
+            po_tr /= re  # ((1 - gam) g_lo + gam g_hi) / Re
+            po = _where(re <= RE_LAMINAR_MAX, po, po_tr, out=po)
+            if re_max >= RE_TURBULENT_MIN:
+                po_tu = fanning_turbulent_smooth(re) * re
+                po = _where(re >= RE_TURBULENT_MIN, po_tu, po, out=po_tu)
+        elif re_max > RE_LAMINAR_MAX:  # 0-d: as above, without the in-place steps
             gam = _transition_weight(re)
             po_tr = ((1.0 - gam) * terms.g_lo + gam * terms.g_hi) / re
             po = np.where(re <= RE_LAMINAR_MAX, po, po_tr)

@@ -393,7 +393,9 @@ def _grid_interval(table: FanTable, q: FloatArray) -> NDArray[np.intp]:
     if np.isnan(table.bin_split_m3_per_s[0]):
         return np.searchsorted(table.grid_m3_per_s, q, side="right")
     b = _bin_of(q, table.bins_per_m3_per_s, len(table.bin_below))
-    return table.bin_below.take(b) + (q >= table.bin_split_m3_per_s.take(b))
+    row = table.bin_below.take(b)
+    row += q >= table.bin_split_m3_per_s.take(b)
+    return row
 
 
 def _as_table(models: Sequence[FanModel] | FanTable) -> FanTable:
@@ -450,11 +452,21 @@ def fan_pressure_indexed(
 
 def _pressure_rows(table: FanTable, base: NDArray[np.intp], flow: ArrayLike) -> FloatArray:
     """Fan pressure, Pa, with the fans' first table rows ``base = index * (G + 1)`` given."""
-    q = np.maximum(np.asarray(flow, dtype=float), 0.0)
-    row = base + _grid_interval(table, q)
-    t = q - table.anchors_m3_per_s.take(row)
-    c2, c3 = table.c2.take(row), table.c3.take(row)
-    return table.c0.take(row) + t * (table.c1.take(row) + t * (c2 + t * c3))
+    flow = np.asarray(flow, dtype=float)
+    shape = np.broadcast_shapes(flow.shape, base.shape)
+    q = np.maximum(np.broadcast_to(flow, shape), 0.0).reshape(-1)  # a fresh 1-D array
+    row = _grid_interval(table, q)
+    row += base.reshape(-1) if base.shape == shape else np.broadcast_to(base, shape).reshape(-1)
+    # c0 + t (c1 + t (c2 + t c3)), t = q - anchor, evaluated in place (population-size
+    # temporaries are page-faulted anew each time, and this runs on every root-find pass)
+    t = table.anchors_m3_per_s.take(row)
+    np.subtract(q, t, out=t)
+    p = table.c3.take(row)
+    coef = q  # q is not needed any more: its buffer holds each gathered coefficient in turn
+    for c in (table.c2, table.c1, table.c0):
+        p *= t
+        p += c.take(row, out=coef)
+    return p.reshape(shape)
 
 
 def inside_fan_data(
@@ -559,7 +571,11 @@ def operating_point(
     base = idx * (len(table.grid_m3_per_s) + 1)
 
     def g(q: FloatArray) -> FloatArray:
-        return _pressure_rows(table, base, q) - system_pressure_drop(q)
+        p, dp = _pressure_rows(table, base, q), system_pressure_drop(q)
+        if np.shape(dp) != p.shape:  # e.g. one fan index for a whole population
+            return p - dp
+        p -= dp  # in place: p is a fresh array
+        return p
 
     dp0 = system_pressure_drop(lo) if system_dp_at_zero is None else system_dp_at_zero
     dp0 = np.asarray(dp0, dtype=float)

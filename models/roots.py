@@ -113,7 +113,7 @@ def bracketed_root(
     shape = np.broadcast_shapes(lo_a.shape, f_lo.shape, f_hi.shape, xtol_a.shape)
 
     def flat(v: ArrayLike) -> FloatArray:  # contiguous 1-D copy; inputs are never written
-        return np.ascontiguousarray(np.broadcast_to(v, shape), dtype=float).reshape(-1)
+        return np.array(np.broadcast_to(v, shape), dtype=float).reshape(-1)
 
     a, hi_s, fa, fb, xtol_a = (flat(v) for v in (lo_s, hi_s, f_lo, f_hi, xtol_a))
     finite_ends = np.broadcast_to(finite_ends, shape).reshape(-1)
@@ -128,6 +128,11 @@ def bracketed_root(
     done = ~valid
     iterations = np.zeros(a.shape, dtype=np.int64)
     step_1 = step_2 = np.abs(b - a)  # the last two step lengths
+    # Work arrays reused on every pass: a fresh temporary of population size is page-faulted
+    # anew each time, which costs more than the arithmetic on it.
+    width, dx, tol, tl = (np.empty_like(a) for _ in range(4))
+    stop, new = np.empty(a.shape, dtype=bool), np.empty(a.shape, dtype=bool)
+    blend = np.empty(a.shape, dtype=np.int64)  # a mask in the form _where blends with
 
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         t = fb / (fb - fa)
@@ -136,13 +141,16 @@ def bracketed_root(
             t = _where(np.isfinite(t_hint), t_hint, t)
         k = 0
         while True:
-            width = a - b
-            dx = np.abs(width)
-            tol = xtol_a + rtol * np.minimum(np.abs(a), np.abs(b))
-            stop = (dx <= tol) | (fb == 0.0)
+            np.subtract(a, b, out=width)
+            np.abs(width, out=dx)
+            np.minimum(np.abs(a, out=tol), np.abs(b, out=tl), out=tol)
+            tol *= rtol
+            tol += xtol_a  # xtol + rtol * min(|a|, |b|)
+            np.less_equal(dx, tol, out=stop)
+            stop |= fb == 0.0
             if k == 0:
                 stop |= fa == 0.0
-            new = stop & ~done
+            np.greater(stop, done, out=new)  # stop & ~done
             if new.any():
                 i = np.flatnonzero(new)
                 root[i] = np.where(fa[i] == 0.0, a[i], b[i])
@@ -158,47 +166,82 @@ def bracketed_root(
                 t_iqi = fb / (fb - fa) * fc / (fc - fa) - (c - b) / (a - b) * fb / (
                     fc - fb
                 ) * fa / (fa - fc)
-                t = _where(iqi, t_iqi, 0.5)
+                t = _where(iqi, t_iqi, 0.5, out=t_iqi)
             elif k > 0:
-                t = fb / (fb - fa)
+                np.subtract(fb, fa, out=t)
+                np.divide(fb, t, out=t)  # fb / (fb - fa)
             # Keep x half a tolerance inside the bracket; fmin/fmax turn a NaN t into an end
             # point, and done elements (tl = 1/2) just bisect.
-            tl = np.fmin(0.5 * tol / dx, 0.5)
-            t = np.fmin(np.fmax(t, tl), 1.0 - tl)
-            x = b + t * width
-            step = t * dx
+            np.multiply(0.5, tol, out=tl)
+            tl /= dx
+            np.fmin(tl, 0.5, out=tl)
+            np.fmax(t, tl, out=t)
+            np.subtract(1.0, tl, out=tl)
+            np.fmin(t, tl, out=t)
+            x = np.multiply(t, width)
+            x += b  # b + t * width
             if k > 0 and not chandrupatla:  # bisect if the step would not halve the one before
-                slow = step > 0.5 * step_2
-                x = _where(slow, b + 0.5 * width, x)
-                step = _where(slow, 0.5 * dx, step)
+                step = t * dx
+                slow = step > np.multiply(0.5, step_2, out=tl)
+                np.negative(slow, dtype=np.int64, out=blend)
+                np.multiply(0.5, width, out=width)
+                width += b  # b + 0.5 * width
+                x = _where(blend, width, x, out=width)
+                width = np.empty_like(a)  # its buffer is x now
+                np.multiply(0.5, dx, out=dx)
+                step = _where(blend, dx, step, out=dx)
+                dx = np.empty_like(a)
+            elif not chandrupatla:
+                step = t * dx
+            else:
+                step = step_1  # unused by Chandrupatla
             step_2, step_1 = step_1, step
             fx = np.ascontiguousarray(f(x.reshape(shape)), dtype=float).reshape(-1)
             k += 1
-            bad = np.isnan(fx) & ~done
-            if bad.any():
-                i = np.flatnonzero(bad)
-                done[i] = True
-                iterations[i] = k
+            if np.isnan(np.add.reduce(fx)):  # a NaN somewhere (or an overflow): look closer
+                bad = np.isnan(fx) & ~done
+                if bad.any():
+                    i = np.flatnonzero(bad)
+                    done[i] = True
+                    iterations[i] = k
             keep = np.signbit(fx) == np.signbit(fb)  # x replaces b; a stays the other end
+            np.negative(keep, dtype=np.int64, out=blend)
             if chandrupatla:
-                c, fc = _where(keep, b, a), _where(keep, fb, fa)
-                fa = _where(keep, fa, fb)
+                c, fc = _where(blend, b, a), _where(blend, fb, fa)
+                fa = _where(blend, fa, fb)
             else:
-                m = 1.0 - fx / fb
-                fa = _where(keep, fa * _where(m > 0.0, m, 0.5), fb)
-            a = _where(keep, a, b)
+                m = np.divide(fx, fb)
+                np.subtract(1.0, m, out=m)  # 1 - fx / fb
+                _where(m > 0.0, m, 0.5, out=m)
+                m *= fa
+                fa = _where(blend, m, fb, out=m)
+            a = _where(blend, a, b, out=a) if a is not c else _where(blend, a, b)
             b, fb = x, fx
     iterations[~done] = k
     return Root(root.reshape(shape), converged.reshape(shape), iterations.reshape(shape))
 
 
-def _where(mask: NDArray[np.bool_], x: ArrayLike, y: ArrayLike) -> FloatArray:
+def _where(
+    mask: NDArray[np.bool_] | NDArray[np.int64],
+    x: ArrayLike,
+    y: ArrayLike,
+    out: FloatArray | None = None,
+) -> FloatArray:
     """``np.where(mask, x, y)`` for float64, exact and branch-free.
 
     ``np.where`` with an irregular mask runs several times slower than plain arithmetic on
     1e5 elements (branch mispredictions); blending the bit patterns,
-    ``((x ^ y) & -mask) ^ y``, does not.
+    ``((x ^ y) & -mask) ^ y``, does not. ``mask`` is bool, or already ``-mask`` as int64
+    (to blend several arrays with one mask); ``out`` (float64, may be ``x`` but not ``y``)
+    receives the result.
     """
     xb = np.asarray(x, dtype=float).view(np.int64)
     yb = np.asarray(y, dtype=float).view(np.int64)
-    return (((xb ^ yb) & np.negative(mask, dtype=np.int64)) ^ yb).view(np.float64)
+    m = mask if mask.dtype == np.int64 else np.negative(mask, dtype=np.int64)
+    if out is None:
+        return (((xb ^ yb) & m) ^ yb).view(np.float64)
+    ob = out.view(np.int64)
+    np.bitwise_xor(xb, yb, out=ob)
+    ob &= m
+    ob ^= yb
+    return out
