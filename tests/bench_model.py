@@ -248,6 +248,21 @@ def main() -> None:
     rows.append(dict(designs=100_000, sources=4, seconds=t4, per_second=1e5 / t4))
     tb = time_vectorized(100_000, 4, clearance=5e-3)
     rows.append(dict(designs=100_000, sources="4 + bypass", seconds=tb, per_second=1e5 / tb))
+    # the same at 1e5 designs with glibc's allocator thresholds raised, as the finfront
+    # command runs (optim.runtime.tune_allocator): fewer page faults on large temporaries
+    from optim.runtime import tune_allocator
+
+    if tune_allocator():
+        for ns, clearance, label in ((1, 0.0, "1"), (4, 0.0, "4"), (4, 5e-3, "4 + bypass")):
+            t = time_vectorized(100_000, ns, clearance=clearance)
+            rows.append(
+                dict(
+                    designs=100_000,
+                    sources=f"{label}, allocator tuned",
+                    seconds=t,
+                    per_second=1e5 / t,
+                )
+            )
     loop_rate = loop_designs_per_second(100 if args.quick else 300)
     vec_rate = next(r["per_second"] for r in rows if r["designs"] == 100_000)
     mem = peak_memory_mb(100_000 if args.quick else 1_000_000)
